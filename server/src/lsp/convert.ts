@@ -1,0 +1,71 @@
+// The only place that turns analysis data (offsets, plain objects) into
+// protocol types (positions, LSP diagnostics, edits, symbols).
+import {
+  CodeAction as LspCodeAction,
+  CodeActionKind,
+  Diagnostic as LspDiagnostic,
+  DiagnosticSeverity,
+  DocumentSymbol,
+  MarkupKind,
+  SymbolKind,
+  type Hover as LspHover,
+  type Range,
+} from 'vscode-languageserver/node';
+import type { Analysis, CodeAction, Diagnostic, Hover, NotebookSymbol, Severity } from '../notebook/ide/service';
+
+export const DIAGNOSTIC_SOURCE = 'stillpoint';
+
+export function toRange(analysis: Analysis, start: number, end: number): Range {
+  return { start: analysis.lines.position(start), end: analysis.lines.position(end) };
+}
+
+const SEVERITY: Readonly<Record<Severity, DiagnosticSeverity>> = {
+  error: DiagnosticSeverity.Error,
+  warning: DiagnosticSeverity.Warning,
+  information: DiagnosticSeverity.Information,
+  hint: DiagnosticSeverity.Hint,
+};
+
+export function toDiagnostic(analysis: Analysis, d: Diagnostic): LspDiagnostic {
+  return {
+    range: toRange(analysis, d.start, d.end),
+    severity: SEVERITY[d.severity],
+    code: d.code,
+    source: DIAGNOSTIC_SOURCE,
+    message: d.message,
+  };
+}
+
+export function toHover(analysis: Analysis, h: Hover): LspHover {
+  return { contents: { kind: MarkupKind.Markdown, value: h.markdown }, range: toRange(analysis, h.start, h.end) };
+}
+
+export function toCodeAction(analysis: Analysis, uri: string, a: CodeAction): LspCodeAction {
+  return {
+    title: a.title,
+    kind: CodeActionKind.QuickFix,
+    isPreferred: a.preferred,
+    diagnostics: [toDiagnostic(analysis, a.diagnostic)],
+    edit: {
+      changes: {
+        [uri]: a.edits.map((e) => ({ range: toRange(analysis, e.start, e.end), newText: e.newText })),
+      },
+    },
+  };
+}
+
+const SYMBOL_KIND: Readonly<Record<NotebookSymbol['kind'], SymbolKind>> = {
+  species: SymbolKind.Constant,
+  reaction: SymbolKind.Event,
+  batch: SymbolKind.Struct,
+};
+
+export function toDocumentSymbol(analysis: Analysis, s: NotebookSymbol): DocumentSymbol {
+  return {
+    name: s.name,
+    detail: s.detail,
+    kind: SYMBOL_KIND[s.kind],
+    range: toRange(analysis, s.start, s.end),
+    selectionRange: toRange(analysis, s.selectionStart, s.selectionEnd),
+  };
+}

@@ -1,0 +1,57 @@
+// The analysis of one notebook text: parse, build the semantic model, and
+// collect every diagnostic in source order. Both the language server and the
+// CLI call this; neither re-parses nor re-checks on their own.
+import { parse } from '../syntax/parser';
+import type { ParseResult, StatementNode } from '../syntax/tree';
+import { buildModel } from '../semantic/build';
+import { diagnostic, type Diagnostic } from '../semantic/codes';
+import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../semantic/model';
+import { LineIndex } from './line-index';
+
+export interface Analysis {
+  readonly text: string;
+  readonly syntax: ParseResult;
+  readonly model: NotebookModel;
+  /** Syntax and semantic diagnostics, sorted by start offset. */
+  readonly diagnostics: readonly Diagnostic[];
+  readonly lines: LineIndex;
+  /** The statement at an offset (binary search), with its model item when it has one. */
+  statementAt(offset: number): StatementAt | undefined;
+}
+
+export type StatementAt =
+  | { readonly node: StatementNode; readonly kind: 'species'; readonly item?: SpeciesDecl }
+  | { readonly node: StatementNode; readonly kind: 'reaction'; readonly item: ReactionModel }
+  | { readonly node: StatementNode; readonly kind: 'batch'; readonly item: BatchModel }
+  | { readonly node: StatementNode; readonly kind: 'error' };
+
+export function analyse(text: string): Analysis {
+  const syntax = parse(text);
+  const model = buildModel(syntax.tree);
+  const diagnostics: Diagnostic[] = [
+    ...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)),
+    ...model.diagnostics,
+  ].sort((a, b) => a.start - b.start || a.end - b.end);
+  const items = new Map<StatementNode, StatementAt>();
+  for (const d of model.speciesList) items.set(d.node, { node: d.node, kind: 'species', item: d });
+  for (const r of model.reactions) items.set(r.node, { node: r.node, kind: 'reaction', item: r });
+  for (const b of model.batches) items.set(b.node, { node: b.node, kind: 'batch', item: b });
+  const statements = syntax.tree.statements;
+  const statementAt = (offset: number): StatementAt | undefined => {
+    let lo = 0;
+    let hi = statements.length - 1;
+    while (lo <= hi) {
+      const mid = (lo + hi) >> 1;
+      const s = statements[mid];
+      if (offset < s.start) hi = mid - 1;
+      else if (offset >= s.end && !(offset === s.end && mid === statements.length - 1)) lo = mid + 1;
+      else {
+        const found = items.get(s);
+        if (found) return found;
+        return s.type === 'species' ? { node: s, kind: 'species' } : { node: s, kind: 'error' };
+      }
+    }
+    return undefined;
+  };
+  return { text, syntax, model, diagnostics, lines: new LineIndex(text), statementAt };
+}

@@ -1,0 +1,178 @@
+// Hover: what the thing under the cursor means, as Markdown. Species and
+// formulas show composition, charge, phase and molar mass; reactions show the
+// per-element balance and the change in moles of gas; batches show their
+// conditions and inputs. Reads only the cached analysis.
+import { elementBySymbol } from '../../chem/elements';
+import { formatFormulaCharge, type Formula } from '../../chem/formula';
+import { Rational } from '../../chem/rational';
+import { formatQuantity, parseUnit, trim } from '../../chem/units';
+import { tokenAt, type Token } from '../syntax/tree';
+import { PHASE_NAMES, type BatchModel, type Phase, type ReactionModel, type ResolvedSpecies, type SpeciesDecl } from '../semantic/model';
+import { KNOWN_PROPERTIES } from '../semantic/properties';
+import type { Analysis } from './analysis';
+
+export interface Hover {
+  readonly markdown: string;
+  readonly start: number;
+  readonly end: number;
+}
+
+/** What each phase label means as a standard state (shown on hover). */
+export const STANDARD_STATES: Readonly<Record<Phase, string>> = {
+  g: 'ideal gas; activity = partial pressure / 1 bar',
+  l: 'member of one ideal liquid mixture; activity = mole fraction in the liquid',
+  s: 'pure solid phase; activity = 1 while present',
+  aq: 'ideal dilute solute; activity = concentration / (1 mol/L)',
+};
+
+export function hover(analysis: Analysis, offset: number): Hover | undefined {
+  const at = analysis.statementAt(offset);
+  if (!at) return undefined;
+  const tok = tokenAt(at.node, offset);
+  if (!tok || tok.kind === 'whitespace' || tok.kind === 'newline' || tok.kind === 'comment' || tok.kind === 'error') return undefined;
+  const span = (markdown: string, t: Token = tok): Hover => ({ markdown, start: t.start, end: t.end });
+
+  if (tok.kind === 'phase') {
+    const p = tok.text.slice(1, -1) as Phase;
+    return PHASE_NAMES[p] ? span(`**${tok.text}** ${PHASE_NAMES[p]}: ${STANDARD_STATES[p]}`) : undefined;
+  }
+  if (tok.kind === 'unit' || tok.kind === 'number') return quantityHover(tok, analysis);
+  if (at.kind === 'species') {
+    if (tok.kind === 'keyword' && tok.text !== 'species') return propertyHover(tok, 'species');
+    return at.item ? span(speciesMarkdown(at.item.name, at.item.formula, at.item.phase, at.item)) : undefined;
+  }
+  if (at.kind === 'reaction') {
+    const r = at.item;
+    if (tok.kind === 'species-ref') {
+      const term = r.terms.find((t) => t.node.species === tok);
+      return term?.species ? span(resolvedMarkdown(term.species)) : undefined;
+    }
+    if (tok.kind === 'keyword' && tok.text !== 'at') return propertyHover(tok, 'reaction');
+    return span(reactionMarkdown(r), { ...tok, start: r.equationStart, end: r.equationEnd });
+  }
+  if (at.kind === 'batch') {
+    const b = at.item;
+    if (tok.kind === 'species-ref') {
+      const a = b.amounts.find((x) => x.node.species === tok);
+      return a?.species ? span(resolvedMarkdown(a.species)) : undefined;
+    }
+    if (tok.kind === 'name' && b.node.name !== tok) {
+      const reaction = analysis.model.reactions.find((r) => r.label === tok.text);
+      if (reaction) return span(reactionMarkdown(reaction));
+      const species = analysis.model.species.get(tok.text);
+      if (species) return span(speciesMarkdown(species.name, species.formula, species.phase, species));
+      return undefined;
+    }
+    if (tok.kind === 'keyword' && tok.text !== 'batch' && tok.text !== 'at') return propertyHover(tok, 'batch');
+    return span(batchMarkdown(b, analysis));
+  }
+  return undefined;
+}
+
+function propertyHover(tok: Token, owner: 'species' | 'reaction' | 'batch'): Hover | undefined {
+  const spec = KNOWN_PROPERTIES[owner][tok.text];
+  return spec ? { markdown: `**${tok.text}**: ${spec.summary}`, start: tok.start, end: tok.end } : undefined;
+}
+
+function quantityHover(tok: Token, analysis: Analysis): Hover | undefined {
+  if (tok.kind !== 'unit') return undefined;
+  const u = parseUnit(tok.text);
+  if (!u.ok) return undefined;
+  void analysis;
+  return { markdown: `**${tok.text}**: ${u.dimension.replace('-', ' ')}, 1 ${tok.text} = ${formatQuantity(u.toSI(1), u.dimension)}`, start: tok.start, end: tok.end };
+}
+
+function resolvedMarkdown(s: ResolvedSpecies): string {
+  return speciesMarkdown(s.declared?.name, s.formula, s.phase, s.declared);
+}
+
+export function speciesMarkdown(name: string | undefined, formula: Formula | undefined, phase: Phase | undefined, decl?: SpeciesDecl): string {
+  const lines: string[] = [];
+  const title = name && formula && name !== formula.text ? `**${name}**: ${formula.text}` : `**${formula?.text ?? name ?? ''}**`;
+  lines.push(`${title}${phase ? ` (${phase}), ${PHASE_NAMES[phase]}` : ''}`);
+  if (!formula) {
+    lines.push('', 'The formula has a problem; see the diagnostic on its declaration.');
+    return lines.join('\n');
+  }
+  lines.push('');
+  if (formula.isElectron) {
+    lines.push('The electron: charge −1, no elements.', '', `Molar mass: ${formula.molarMass.toExponential(6)} g/mol (CODATA)`);
+    return lines.join('\n');
+  }
+  lines.push('| Element | Count | g/mol | Mass % |', '|:--|--:|--:|--:|');
+  let estimated = false;
+  for (const [symbol, count] of formula.composition) {
+    const e = elementBySymbol(symbol);
+    const w = e ? e.atomicWeight * count.toNumber() : NaN;
+    if (e?.weightKind === 'mass-number') estimated = true;
+    const pct = formula.molarMass > 0 ? (100 * w) / formula.molarMass : 0;
+    lines.push(`| ${symbol}${e ? ` (${e.name})` : ''} | ${count.toString()} | ${w.toFixed(3)} | ${pct.toFixed(2)} |`);
+  }
+  lines.push('');
+  lines.push(`Molar mass: **${formula.molarMass.toFixed(3)} g/mol**${formula.charge !== 0 ? ` · charge ${formatFormulaCharge(formula.charge).replace('^', '')}` : ''}`);
+  if (estimated) lines.push('', '_Includes an element with no standard atomic weight: the mass number of its longest-lived isotope is used._');
+  if (phase) lines.push('', `Standard state: ${STANDARD_STATES[phase]}.`);
+  if (decl?.density !== undefined) lines.push('', `Density: ${formatQuantity(decl.density, 'density')}`);
+  if (decl?.purity !== undefined) lines.push('', `Purity: ${formatQuantity(decl.purity, 'percent')}`);
+  return lines.join('\n');
+}
+
+export function reactionMarkdown(r: ReactionModel): string {
+  const lines: string[] = [];
+  const kind = r.reversible ? 'reversible' : 'one-way';
+  lines.push(`**${r.label}**${r.labelIsAuto ? ' (automatic label)' : ''}: ${kind} reaction`, '');
+  if (!r.balance) {
+    lines.push('Balance not checked: a term or coefficient has a problem (see its diagnostic).');
+  } else {
+    lines.push('| | Left | Right | |', '|:--|--:|--:|:-:|');
+    for (const t of r.balance.tallies) {
+      lines.push(`| ${t.element} | ${t.left.toString()} | ${t.right.toString()} | ${t.left.equals(t.right) ? '✓' : '✗'} |`);
+    }
+    lines.push('', r.balance.balanced ? 'Balanced in elements and charge.' : 'Not balanced (see the diagnostic for a fix).');
+    const gas = gasChange(r);
+    lines.push('', `Δn(gas) = ${gas.delta.toString()} mol per mole of reaction (right − left, gas-phase terms)${gas.unknown.length > 0 ? `; no phase given for ${gas.unknown.map((s) => `\`${s}\``).join(', ')}, so not counted as gas` : ''}`);
+  }
+  for (const k of r.constants) {
+    lines.push('', `K = ${trim(k.value)} at ${formatQuantity(k.temperature, 'temperature')}`);
+  }
+  return lines.join('\n');
+}
+
+/** Σν over gas-phase terms, right minus left; also the terms whose phase is unknown. */
+export function gasChange(r: ReactionModel): { delta: Rational; unknown: string[] } {
+  let delta = Rational.ZERO;
+  const unknown: string[] = [];
+  for (const t of r.terms) {
+    if (!t.species || !t.coefficient) continue;
+    if (t.species.formula.isElectron) continue;
+    if (t.species.phase === undefined) {
+      unknown.push(t.node.species.text);
+      continue;
+    }
+    if (t.species.phase !== 'g') continue;
+    delta = t.side === 'right' ? delta.add(t.coefficient) : delta.sub(t.coefficient);
+  }
+  return { delta, unknown };
+}
+
+function batchMarkdown(b: BatchModel, analysis: Analysis): string {
+  const lines: string[] = [];
+  lines.push(`**batch ${b.name}**`, '');
+  lines.push(`Temperature: ${b.temperature !== undefined ? formatQuantity(b.temperature, 'temperature') : 'not readable'}`);
+  lines.push(`Pressure: ${b.pressureIsDefault ? '1 atm (default, none written)' : formatQuantity(b.pressure, 'pressure')}`);
+  if (b.vessel !== undefined) lines.push(`Closed vessel: ${formatQuantity(b.vessel, 'volume')}`);
+  if (b.volume !== undefined) lines.push(`Liquid volume: ${formatQuantity(b.volume, 'volume')}`);
+  if (b.amounts.length > 0) {
+    lines.push('', '| Species | Charged | Formula | g/mol |', '|:--|--:|:--|--:|');
+    for (const a of b.amounts) {
+      const amount = a.value !== undefined && a.dimension ? formatQuantity(a.value, a.dimension) : '?';
+      const f = a.species?.formula;
+      lines.push(`| ${a.node.species.text} | ${amount} | ${f ? f.text : '?'} | ${f ? f.molarMass.toFixed(3) : '?'} |`);
+    }
+  }
+  const reactions = b.uses ?? analysis.model.reactions.filter((r) => r.reversible);
+  if (reactions.length > 0) {
+    lines.push('', `Reactions${b.uses ? ' (from `uses`)' : ' in this notebook'}: ${reactions.map((r) => `\`${r.label}\``).join(', ')}`);
+  }
+  return lines.join('\n');
+}

@@ -1,0 +1,536 @@
+// Builds the semantic model from a syntax tree: declares species, resolves the
+// terms of every reaction (declared names win over formulas), reads properties
+// and batch lines into SI values, and checks element and charge balance. Every
+// problem becomes a diagnostic with the range of the text it is about.
+import { solveBalance, tallyBalance, type BalanceTerm } from '../../chem/balance';
+import { parseFormula, type Formula, type FormulaProblem } from '../../chem/formula';
+import { Rational } from '../../chem/rational';
+import type { FileNode, PropertyLine, PropertyNode, Token, TermNode } from '../syntax/tree';
+import { BATCH_KEYWORDS, IDENTIFIER, STATEMENT_KEYWORDS } from '../syntax/parser';
+import { diagnostic, type Diagnostic, type Fix } from './codes';
+import { balanceDiagnostics } from './balance-check';
+import {
+  PHASE_NAMES,
+  STANDARD_ATMOSPHERE,
+  type BatchAmount,
+  type BatchModel,
+  type EquilibriumConstant,
+  type NotebookModel,
+  type Phase,
+  type ReactionModel,
+  type ReactionTerm,
+  type ResolvedSpecies,
+  type SpeciesDecl,
+} from './model';
+import { KNOWN_PROPERTIES, readQuantity } from './properties';
+
+const RESERVED_NAMES: ReadonlySet<string> = new Set<string>([...STATEMENT_KEYWORDS, ...BATCH_KEYWORDS, 'at']);
+
+export function buildModel(tree: FileNode): NotebookModel {
+  return new Builder(tree).run();
+}
+
+class Builder {
+  private readonly diagnostics: Diagnostic[] = [];
+  private readonly species = new Map<string, SpeciesDecl>();
+  private readonly speciesList: SpeciesDecl[] = [];
+  /** Formula text -> parse result, so a formula used many times is read once. */
+  private readonly formulaCache = new Map<string, ReturnType<typeof parseFormula>>();
+
+  constructor(private readonly tree: FileNode) {}
+
+  run(): NotebookModel {
+    for (const s of this.tree.statements) if (s.type === 'species') this.declareSpecies(s);
+    const reactions: ReactionModel[] = [];
+    let position = 0;
+    for (const s of this.tree.statements) {
+      if (s.type === 'reaction') reactions.push(this.reaction(s, ++position));
+    }
+    this.checkDuplicateLabels(reactions);
+    const batches: BatchModel[] = [];
+    for (const s of this.tree.statements) if (s.type === 'batch') batches.push(this.batch(s, reactions));
+    this.checkDuplicateBatches(batches);
+    return { species: this.species, speciesList: this.speciesList, reactions, batches, diagnostics: this.diagnostics };
+  }
+
+  private report(d: Diagnostic): void {
+    this.diagnostics.push(d);
+  }
+
+  private formula(text: string): ReturnType<typeof parseFormula> {
+    let r = this.formulaCache.get(text);
+    if (!r) {
+      r = parseFormula(text);
+      this.formulaCache.set(text, r);
+    }
+    return r;
+  }
+
+  // ---- species --------------------------------------------------------------------------
+
+  private declareSpecies(node: import('../syntax/tree').SpeciesNode): void {
+    const nameToken = node.name;
+    let formula: Formula | undefined;
+    if (node.formula) formula = this.readFormula(node.formula, 'declaration');
+    const phase = node.phase ? this.readPhase(node.phase) : undefined;
+    const props = this.readProperties(node.properties, 'species');
+    if (!nameToken) return;
+    const name = nameToken.text;
+    if (RESERVED_NAMES.has(name)) {
+      this.report(diagnostic('reserved-name', `\`${name}\` is a keyword of the notebook; choose another species name`, nameToken.start, nameToken.end));
+      return;
+    }
+    const decl: SpeciesDecl = {
+      name,
+      nameToken,
+      node,
+      formula,
+      phase,
+      density: props.get('density')?.value,
+      purity: props.get('purity')?.value,
+    };
+    const purity = props.get('purity');
+    if (purity && (purity.value <= 0 || purity.value > 1)) {
+      this.report(diagnostic('bad-quantity', 'purity must be more than 0 % and at most 100 %', purity.node.start, purity.node.end));
+    }
+    const density = props.get('density');
+    if (density && density.value <= 0) {
+      this.report(diagnostic('bad-quantity', 'density must be positive', density.node.start, density.node.end));
+    }
+    const previous = this.species.get(name);
+    if (previous) {
+      this.report(
+        diagnostic('duplicate-name', `species \`${name}\` is already declared on line ${lineOf(this.tree, previous.nameToken.start)}; this declaration is ignored`, nameToken.start, nameToken.end),
+      );
+      return;
+    }
+    this.species.set(name, decl);
+    this.speciesList.push(decl);
+  }
+
+  /**
+   * Reads a formula token and reports its problems at their exact offsets. `declaration`
+   * formulas must be formulas; term formulas may instead be undeclared names (the caller
+   * decides how to report those and passes `quiet`).
+   */
+  private readFormula(tok: Token, _where: 'declaration' | 'term'): Formula | undefined {
+    const r = this.formula(tok.text);
+    for (const p of r.problems) this.report(this.formulaProblem(tok, p));
+    return r.ok ? r.formula : undefined;
+  }
+
+  private formulaProblem(tok: Token, p: FormulaProblem): Diagnostic {
+    const start = tok.start + p.start;
+    const end = tok.start + Math.max(p.end, p.start + 1);
+    const fixes: Fix[] = (p.fixes ?? []).map((f) => ({
+      title: f.title,
+      edits: [{ start: tok.start, end: tok.end, newText: f.replacement }],
+      preferred: false,
+    }));
+    const code = p.code === 'syntax' ? 'bad-formula' : p.code;
+    return diagnostic(code, p.message, Math.min(start, tok.end), Math.min(end, tok.end), fixes, p.severity);
+  }
+
+  private readPhase(tok: Token): Phase | undefined {
+    const inner = tok.text.slice(1, -1);
+    if (inner === 'g' || inner === 'l' || inner === 's' || inner === 'aq') return inner;
+    this.report(diagnostic('unknown-phase', `unknown phase \`${tok.text}\`; expected (g), (l), (s) or (aq)`, tok.start, tok.end));
+    return undefined;
+  }
+
+  // ---- properties -----------------------------------------------------------------------
+
+  private readProperties(
+    lines: readonly PropertyLine[],
+    owner: 'species' | 'reaction' | 'batch',
+  ): Map<string, { value: number; node: PropertyNode }> {
+    const found = new Map<string, { value: number; node: PropertyNode }>();
+    const known = KNOWN_PROPERTIES[owner];
+    for (const line of lines) {
+      if (line.type !== 'property') continue;
+      const spec = known[line.keyText];
+      if (!spec) {
+        const first = line.key[0];
+        const last = line.key[line.key.length - 1];
+        this.report(
+          diagnostic(
+            'unknown-property',
+            `unknown ${owner} property \`${line.keyText}\`; known ${owner} properties: ${Object.keys(known).map((k) => `\`${k}\``).join(', ')}`,
+            first.start,
+            last.end,
+          ),
+        );
+        continue;
+      }
+      if (spec.kind !== 'quantity') continue;
+      if (line.keyText !== 'K' && found.has(line.keyText)) {
+        this.report(diagnostic('duplicate-property', `\`${line.keyText}\` is given twice; the first is used`, line.key[0].start, line.key[line.key.length - 1].end));
+        continue;
+      }
+      if (line.value) {
+        const q = readQuantity(line.value, spec.dimensions, `\`${line.keyText}\``);
+        for (const d of q.diagnostics) this.report(d);
+        if (q.value !== undefined && !found.has(line.keyText)) found.set(line.keyText, { value: q.value, node: line });
+      }
+      if (line.temperature && !spec.temperature) {
+        const at = line.at ?? line.temperature;
+        this.report(diagnostic('syntax', `\`${line.keyText}\` takes no temperature; remove \`at …\``, at.start, line.temperature.end));
+      }
+    }
+    return found;
+  }
+
+  // ---- reactions ------------------------------------------------------------------------
+
+  private reaction(node: import('../syntax/tree').ReactionNode, position: number): ReactionModel {
+    const terms: ReactionTerm[] = [];
+    for (const t of node.left) terms.push(this.term(t, 'left'));
+    for (const t of node.right) terms.push(this.term(t, 'right'));
+    const all = [...node.left, ...node.right];
+    const equationStart = all.length > 0 ? Math.min(...all.map((t) => t.start), node.arrow.start) : node.arrow.start;
+    const equationEnd = all.length > 0 ? Math.max(...all.map((t) => t.end), node.arrow.end) : node.arrow.end;
+    const label = node.label?.text ?? `R${position}`;
+    const reversible = node.arrow.text === '<=>' || node.arrow.text === '⇌';
+    this.checkSameSpeciesBothSides(terms);
+    const constants = this.reactionConstants(node.properties);
+    let balance: ReactionModel['balance'];
+    const complete =
+      node.left.length > 0 && node.right.length > 0 && terms.every((t) => t.species !== undefined && t.coefficient !== undefined);
+    if (complete) {
+      const balanceTerms: BalanceTerm[] = terms.map((t) => ({
+        composition: t.species!.formula.composition,
+        charge: t.species!.formula.charge,
+        side: t.side,
+      }));
+      const tally = tallyBalance(balanceTerms, terms.map((t) => t.coefficient!));
+      const solution = solveBalance(balanceTerms);
+      balance = { tallies: tally.tallies, balanced: tally.balanced, solution };
+    }
+    const model: ReactionModel = { node, label, labelIsAuto: !node.label, reversible, terms, equationStart, equationEnd, balance, constants };
+    for (const d of balanceDiagnostics(model)) this.report(d);
+    return model;
+  }
+
+  private reactionConstants(lines: readonly PropertyLine[]): EquilibriumConstant[] {
+    const out: EquilibriumConstant[] = [];
+    this.readProperties(lines, 'reaction');
+    for (const line of lines) {
+      if (line.type !== 'property' || line.keyText !== 'K' || !line.value) continue;
+      const q = readQuantity(line.value, ['dimensionless'], '`K`', { silent: true });
+      if (q.value === undefined) continue;
+      if (q.value <= 0) {
+        this.report(
+          diagnostic(
+            'bad-quantity',
+            q.value === 0
+              ? 'K must be positive: K = 0 would mean no product at all; for a step that does not go, leave the reaction out'
+              : 'K must be positive: an equilibrium constant is a ratio of activities',
+            line.value.start,
+            line.value.end,
+          ),
+        );
+        continue;
+      }
+      if (!line.temperature) {
+        this.report(
+          diagnostic('missing-temperature', 'an equilibrium constant belongs to a temperature: write `K = … at 25 °C`', line.key[0].start, line.value.end),
+        );
+        continue;
+      }
+      const t = readQuantity(line.temperature, ['temperature'], 'the temperature');
+      for (const d of t.diagnostics) this.report(d);
+      if (t.value === undefined) continue;
+      if (t.value <= 0) {
+        this.report(diagnostic('bad-quantity', 'temperature must be above absolute zero', line.temperature.start, line.temperature.end));
+        continue;
+      }
+      out.push({ value: q.value, temperature: t.value, node: line });
+    }
+    return out;
+  }
+
+  private term(node: TermNode, side: 'left' | 'right'): ReactionTerm {
+    const coefficient = node.coefficient ? this.readCoefficient(node.coefficient) : Rational.ONE;
+    const species = this.resolveSpecies(node.species, node.phase);
+    return { node, side, coefficient, species };
+  }
+
+  private readCoefficient(tok: Token): Rational | undefined {
+    const text = tok.text.replace(/^\+/, '');
+    const value = Rational.parse(text.replace(/−/g, '-'));
+    const tooBig = text.replace(/[^0-9]/g, '').length > MAX_COEFFICIENT_DIGITS;
+    if (!value || tooBig) {
+      this.report(
+        diagnostic(
+          'bad-coefficient',
+          tooBig ? `coefficient \`${tok.text}\` is too large to be meaningful` : `\`${tok.text}\` is not a coefficient; write an integer, decimal or fraction such as 2, 0.5 or 1/2`,
+          tok.start,
+          tok.end,
+        ),
+      );
+      return undefined;
+    }
+    if (value.sign() <= 0) {
+      this.report(
+        diagnostic(
+          'bad-coefficient',
+          value.isZero()
+            ? 'a coefficient of 0 removes the term; delete the term instead'
+            : 'coefficients are positive; move the term to the other side of the arrow instead',
+          tok.start,
+          tok.end,
+        ),
+      );
+      return undefined;
+    }
+    return value;
+  }
+
+  /**
+   * A term or amount line's species: a declared name wins; otherwise the text is read as a
+   * formula. Problems are reported on the token.
+   */
+  private resolveSpecies(tok: Token, phaseTok: Token | undefined): ResolvedSpecies | undefined {
+    const writtenPhase = phaseTok ? this.readPhase(phaseTok) : undefined;
+    const declared = this.species.get(tok.text);
+    if (declared) {
+      if (writtenPhase && declared.phase && writtenPhase !== declared.phase) {
+        this.report(
+          diagnostic(
+            'phase-mismatch',
+            `\`${declared.name}\` is declared as ${PHASE_NAMES[declared.phase]} (${declared.phase}) but written here as ${PHASE_NAMES[writtenPhase]} (${writtenPhase}); declare a separate species for the other phase`,
+            phaseTok!.start,
+            phaseTok!.end,
+          ),
+        );
+      }
+      if (!declared.formula) return undefined; // its declaration already has an error
+      return { key: declared.name, declared, formula: declared.formula, phase: writtenPhase ?? declared.phase };
+    }
+    const r = this.formula(tok.text);
+    const looksLikeName = IDENTIFIER.test(tok.text) && IDENTIFIER.exec(tok.text)![0].length === tok.text.length && /^[a-z_]/.test(tok.text);
+    if (!r.ok && looksLikeName) {
+      this.report(
+        diagnostic(
+          'unknown-species',
+          `\`${tok.text}\` is not a declared species (and not a formula); declare it with \`species ${tok.text} = FORMULA (PHASE)\``,
+          tok.start,
+          tok.end,
+        ),
+      );
+      return undefined;
+    }
+    for (const p of r.problems) {
+      const d = this.formulaProblem(tok, p);
+      if (d.code === 'unknown-element' && IDENTIFIER.test(tok.text) && IDENTIFIER.exec(tok.text)![0].length === tok.text.length) {
+        this.report({ ...d, message: `${d.message} (or, if \`${tok.text}\` is a name, declare it with \`species ${tok.text} = FORMULA\`)` });
+      } else if (d.code === 'bad-formula' && /\+[A-Za-z0-9[(]/.test(tok.text)) {
+        this.report({ ...d, message: `${d.message}; terms are separated by \` + \` with spaces on both sides` });
+      } else {
+        this.report(d);
+      }
+    }
+    if (!r.ok) return undefined;
+    return { key: tok.text, formula: r.formula, phase: writtenPhase };
+  }
+
+  private checkSameSpeciesBothSides(terms: readonly ReactionTerm[]): void {
+    const left = new Map<string, ReactionTerm>();
+    for (const t of terms) if (t.side === 'left' && t.species) left.set(speciesIdentity(t.species), t);
+    for (const t of terms) {
+      if (t.side !== 'right' || !t.species) continue;
+      if (left.has(speciesIdentity(t.species))) {
+        this.report(
+          diagnostic(
+            'same-species-both-sides',
+            `\`${t.node.species.text}\` appears on both sides; cancel it out unless it is a catalyst you want recorded`,
+            t.node.species.start,
+            t.node.species.end,
+          ),
+        );
+      }
+    }
+  }
+
+  private checkDuplicateLabels(reactions: readonly ReactionModel[]): void {
+    const seen = new Map<string, ReactionModel>();
+    for (const r of reactions) {
+      const prev = seen.get(r.label);
+      if (prev) {
+        const tok = r.node.label ?? r.node.arrow;
+        const prevLine = lineOf(this.tree, (prev.node.label ?? prev.node.arrow).start);
+        this.report(
+          diagnostic(
+            'duplicate-label',
+            `the label \`${r.label}\` is already used on line ${prevLine}${prev.labelIsAuto ? ' (given automatically by position)' : ''}; labels must be unique`,
+            tok.start,
+            tok.end,
+          ),
+        );
+      } else {
+        seen.set(r.label, r);
+      }
+    }
+  }
+
+  // ---- batches --------------------------------------------------------------------------
+
+  private batch(node: import('../syntax/tree').BatchNode, reactions: readonly ReactionModel[]): BatchModel {
+    let temperature: number | undefined;
+    if (node.temperature) {
+      const t = readQuantity(node.temperature, ['temperature'], 'the batch temperature');
+      for (const d of t.diagnostics) this.report(d);
+      if (t.value !== undefined && t.value <= 0) {
+        this.report(diagnostic('bad-quantity', 'temperature must be above absolute zero', node.temperature.start, node.temperature.end));
+      } else {
+        temperature = t.value;
+      }
+    }
+    let pressure = STANDARD_ATMOSPHERE;
+    let pressureIsDefault = true;
+    if (node.pressure) {
+      const p = readQuantity(node.pressure, ['pressure'], 'the batch pressure');
+      for (const d of p.diagnostics) this.report(d);
+      if (p.value !== undefined && p.value <= 0) {
+        this.report(diagnostic('bad-quantity', 'pressure must be positive', node.pressure.start, node.pressure.end));
+      } else if (p.value !== undefined) {
+        pressure = p.value;
+        pressureIsDefault = false;
+      }
+    }
+    const props = this.readProperties(node.properties, 'batch');
+    const vessel = this.positive(props.get('vessel'), 'the vessel volume');
+    const volume = this.positive(props.get('volume'), 'the liquid volume');
+    if (vessel !== undefined && volume !== undefined && volume >= vessel) {
+      const v = props.get('volume')!;
+      this.report(diagnostic('bad-quantity', 'the liquid volume must be less than the vessel volume, leaving room for the gas', v.node.start, v.node.end));
+    }
+    const amounts: BatchAmount[] = [];
+    const seen = new Map<string, BatchAmount>();
+    for (const line of node.properties) {
+      if (line.type !== 'amount') continue;
+      const species = this.resolveSpecies(line.species, line.phase);
+      let value: number | undefined;
+      let dimension: BatchAmount['dimension'];
+      if (line.value) {
+        const q = readQuantity(line.value, ['amount', 'mass', 'volume', 'equivalents', 'concentration', 'pressure'], `the amount of \`${line.species.text}\``);
+        for (const d of q.diagnostics) this.report(d);
+        if (q.value !== undefined && q.value < 0) {
+          this.report(diagnostic('bad-quantity', 'an amount cannot be negative (0 is allowed)', line.value.start, line.value.end));
+        } else {
+          value = q.value;
+          dimension = q.dimension;
+        }
+      }
+      const amount: BatchAmount = { node: line, species, value, dimension };
+      if (species) {
+        const id = speciesIdentity(species);
+        if (seen.has(id)) {
+          this.report(diagnostic('duplicate-property', `\`${line.species.text}\` is listed twice in this batch; give one total amount`, line.species.start, line.species.end));
+          continue;
+        }
+        seen.set(id, amount);
+      }
+      amounts.push(amount);
+    }
+    let basis: string | undefined;
+    let uses: ReactionModel[] | undefined;
+    for (const line of node.properties) {
+      if (line.type !== 'property') continue;
+      if (line.keyText === 'basis' && line.names[0]) {
+        const tok = line.names[0];
+        basis = tok.text;
+        if (!amounts.some((a) => a.node.species.text === tok.text)) {
+          this.report(diagnostic('bad-basis', `the basis \`${tok.text}\` must be one of this batch's species with an amount`, tok.start, tok.end));
+        }
+      }
+      if (line.keyText === 'uses') {
+        uses = [];
+        for (const tok of line.names) {
+          const r = reactions.find((x) => x.label === tok.text);
+          if (!r) {
+            const labels = reactions.map((x) => `\`${x.label}\``).join(', ');
+            this.report(diagnostic('unknown-label', `no reaction is labelled \`${tok.text}\`${labels ? `; labels in this notebook: ${labels}` : ''}`, tok.start, tok.end));
+          } else {
+            uses.push(r);
+          }
+        }
+      }
+    }
+    this.checkEquivalents(amounts, basis);
+    return {
+      node,
+      name: node.name?.text ?? '',
+      temperature,
+      pressure,
+      pressureIsDefault,
+      amounts,
+      vessel,
+      volume,
+      basis,
+      uses,
+    };
+  }
+
+  private positive(p: { value: number; node: PropertyNode } | undefined, what: string): number | undefined {
+    if (!p) return undefined;
+    if (p.value <= 0) {
+      this.report(diagnostic('bad-quantity', `${what} must be positive`, p.node.start, p.node.end));
+      return undefined;
+    }
+    return p.value;
+  }
+
+  private checkEquivalents(amounts: readonly BatchAmount[], basis: string | undefined): void {
+    const equiv = amounts.filter((a) => a.dimension === 'equivalents');
+    if (equiv.length === 0 || basis !== undefined) return;
+    const absolute = amounts.find((a) => a.dimension !== undefined && a.dimension !== 'equivalents');
+    if (!absolute) {
+      for (const a of equiv) {
+        this.report(
+          diagnostic('bad-basis', '`equiv` needs a species with an absolute amount (mol, g, mL, …) to be relative to; give one, or add `basis NAME`', a.node.start, a.node.end),
+        );
+      }
+    }
+  }
+
+  private checkDuplicateBatches(batches: readonly BatchModel[]): void {
+    const seen = new Map<string, BatchModel>();
+    for (const b of batches) {
+      if (!b.node.name) continue;
+      const prev = seen.get(b.name);
+      if (prev && prev.node.name) {
+        this.report(
+          diagnostic('duplicate-name', `batch \`${b.name}\` is already defined on line ${lineOf(this.tree, prev.node.name.start)}`, b.node.name.start, b.node.name.end),
+        );
+      } else {
+        seen.set(b.name, b);
+      }
+    }
+  }
+}
+
+/** Coefficients with more digits than this are typos, not stoichiometry. */
+const MAX_COEFFICIENT_DIGITS = 12;
+
+/** Two references are the same species when they name the same declaration, or the same formula and phase. */
+export function speciesIdentity(s: ResolvedSpecies): string {
+  return s.declared ? `decl:${s.declared.name}` : `formula:${s.key}(${s.phase ?? ''})`;
+}
+
+/** 1-based line number of an offset, for messages. */
+function lineOf(tree: FileNode, offset: number): number {
+  let line = 1;
+  const stack: FileNode['children'][number][] = [tree];
+  // Count newline tokens before the offset; the tree is lossless so this is exact.
+  while (stack.length > 0) {
+    const n = stack.pop()!;
+    if (n.type === 'token') {
+      if (n.kind === 'newline' && n.end <= offset) line++;
+      continue;
+    }
+    if (n.start > offset) continue;
+    for (const c of n.children) stack.push(c);
+  }
+  return line;
+}

@@ -1,0 +1,697 @@
+// The notebook parser: text -> (lossless tree, syntax errors). It never fails.
+// The language is line based: a line in column 0 starts a statement (species,
+// reaction or batch); indented lines are properties of the statement above.
+// A line it cannot read becomes an error node, and parsing goes on with the
+// next line, so one bad line never hides the problems of the others.
+import {
+  assemble,
+  isBlank,
+  splitLines,
+  token,
+  trimRange,
+  wordsIn,
+  type Line,
+  type Word,
+} from './scan';
+import type {
+  AmountNode,
+  BatchNode,
+  ErrorLineNode,
+  FileNode,
+  ParseResult,
+  PropertyLine,
+  PropertyNode,
+  QuantityNode,
+  ReactionNode,
+  SpeciesNode,
+  StatementNode,
+  SyntaxElement,
+  SyntaxError,
+  TermNode,
+  Token,
+} from './tree';
+import { tokensOf } from './tree';
+
+/** Lines longer than this are not parsed: almost surely pasted data, and costly to analyse. */
+export const MAX_LINE_LENGTH = 4000;
+
+export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
+/** Batch property keywords; any other first word on a batch line names a species amount. */
+export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses'] as const;
+/** Property keys whose value is a comma-separated list of names rather than a quantity. */
+export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
+
+export const IDENTIFIER = /^[A-Za-z_][A-Za-z0-9_]*/;
+/** Batch names and reaction labels may also contain `-` (`trial-1`). */
+export const LABEL_NAME = /^[A-Za-z_][A-Za-z0-9_-]*/;
+export const ARROWS = /<=>|⇌|->|→/g;
+const PHASE_WORD = /^\([a-z]{1,4}\)$/;
+const PHASE_SUFFIX = /\([a-z]{1,4}\)$/;
+const COEFFICIENT_WORD = /^[+\-−]?(?:\d+\/\d+|\d+(?:\.\d+)?|\.\d+)$/;
+const COEFFICIENT_PREFIX = /^[+\-−]?(?:\d+\/\d+|\d+(?:\.\d+)?|\.\d+)(?=[A-Za-z[(])/;
+const NUMBER_PREFIX = /^[+\-−]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+\-−]?\d+)?/;
+
+type OpenStatement = {
+  kind: 'species' | 'reaction' | 'batch' | 'error';
+  /** Elements of the header line (already assembled, line break included). */
+  header: SyntaxElement[];
+  build: (children: SyntaxElement[], properties: PropertyLine[]) => StatementNode;
+  lines: SyntaxElement[];
+  properties: PropertyLine[];
+};
+
+export function parse(text: string): ParseResult {
+  return new Parser(text).run();
+}
+
+class Parser {
+  private readonly errors: SyntaxError[] = [];
+  private readonly fileChildren: SyntaxElement[] = [];
+  private readonly statements: StatementNode[] = [];
+  private open: OpenStatement | undefined;
+  /** Blank and note-only lines not yet known to belong to the open statement or the file. */
+  private pendingTrivia: SyntaxElement[] = [];
+
+  constructor(private readonly text: string) {}
+
+  run(): ParseResult {
+    for (const line of splitLines(this.text)) this.line(line);
+    this.closeStatement();
+    this.fileChildren.push(...this.pendingTrivia);
+    const tree: FileNode = {
+      type: 'file',
+      start: 0,
+      end: this.text.length,
+      children: this.fileChildren,
+      statements: this.statements,
+    };
+    this.reportStrayErrorTokens(tree);
+    return { tree, errors: this.errors };
+  }
+
+  private error(message: string, start: number, end: number, code: SyntaxError['code'] = 'syntax'): void {
+    if (this.errors.some((e) => e.start === start)) return; // at most one problem per offset
+    this.errors.push({ code, message, start, end: Math.max(end, start + 1) > this.text.length ? Math.max(end, start) : Math.max(end, start + 1) });
+  }
+
+  private line(line: Line): void {
+    const { text } = this;
+    if (line.end - line.start > MAX_LINE_LENGTH) {
+      this.error(
+        `line is ${line.end - line.start} characters long; lines longer than ${MAX_LINE_LENGTH} are not read (split it, or make it a note)`,
+        line.start,
+        line.end,
+        'line-too-long',
+      );
+      const node = this.errorLine([token(text, 'error', line.start, line.end)], line);
+      if (isBlank(text[line.start])) this.addProperty(node);
+      else this.startStatement({ kind: 'error', header: [...node.children], build: errorStatement, lines: [], properties: [] });
+      return;
+    }
+    let indentEnd = line.start;
+    while (indentEnd < line.end && isBlank(text[indentEnd])) indentEnd++;
+    const hash = text.indexOf('#', indentEnd);
+    const commentStart = hash >= 0 && hash < line.end ? hash : line.end;
+    const [cs, ce] = trimRange(text, indentEnd, commentStart);
+    const tail: Token[] = [];
+    if (commentStart < line.end) tail.push(token(text, 'comment', commentStart, line.end));
+    if (line.breakEnd > line.end) tail.push(token(text, 'newline', line.end, line.breakEnd));
+
+    if (cs === ce) {
+      this.pendingTrivia.push(...assemble(text, tail, line.start, line.breakEnd));
+      return;
+    }
+    if (indentEnd > line.start) {
+      const items = this.propertyLine(cs, ce);
+      const children = assemble(text, [...items.children, ...tail], line.start, line.breakEnd);
+      const node = items.build(children, line);
+      this.addProperty(node);
+      return;
+    }
+    this.closeStatement();
+    this.fileChildren.push(...this.pendingTrivia);
+    this.pendingTrivia = [];
+    this.topLevel(cs, ce, tail, line);
+  }
+
+  private addProperty(node: PropertyLine): void {
+    if (!this.open) {
+      this.error(
+        'an indented line must belong to a species, reaction or batch above it; remove the indentation to start a statement',
+        node.start,
+        node.end,
+      );
+      this.fileChildren.push(...this.pendingTrivia, node);
+      this.pendingTrivia = [];
+      return;
+    }
+    this.open.lines.push(...this.pendingTrivia, node);
+    this.pendingTrivia = [];
+    this.open.properties.push(node);
+  }
+
+  private startStatement(open: OpenStatement): void {
+    this.closeStatement();
+    this.open = open;
+  }
+
+  private closeStatement(): void {
+    const open = this.open;
+    if (!open) return;
+    this.open = undefined;
+    const node = open.build([...open.header, ...open.lines], open.properties);
+    this.fileChildren.push(node);
+    this.statements.push(node);
+  }
+
+  // ---- top-level statements -------------------------------------------------------------
+
+  private topLevel(cs: number, ce: number, tail: Token[], line: Line): void {
+    const first = wordsIn(this.text, cs, ce)[0];
+    const firstName = IDENTIFIER.exec(first.text)?.[0] ?? '';
+    if (firstName === 'species' && (first.text.length === 7 || isBlank(this.text[cs + 7]))) {
+      this.species(cs, ce, tail, line);
+    } else if (firstName === 'batch' && (first.text.length === 5 || isBlank(this.text[cs + 5]))) {
+      this.batch(cs, ce, tail, line);
+    } else if (!this.hasArrow(cs, ce) && looksLikeMisspelledKeyword(first.text)) {
+      const kw = looksLikeMisspelledKeyword(first.text);
+      this.error(`unknown statement \`${first.text}\`; did you mean \`${kw}\`?`, first.start, first.end);
+      const children = assemble(this.text, [token(this.text, 'error', cs, ce), ...tail], line.start, line.breakEnd);
+      this.startStatement({ kind: 'error', header: children, build: errorStatement, lines: [], properties: [] });
+    } else {
+      this.reaction(cs, ce, tail, line);
+    }
+  }
+
+  private hasArrow(cs: number, ce: number): boolean {
+    ARROWS.lastIndex = 0;
+    const m = ARROWS.exec(this.text.slice(cs, ce));
+    return m !== null;
+  }
+
+  private species(cs: number, ce: number, tail: Token[], line: Line): void {
+    const { text } = this;
+    const items: Token[] = [token(text, 'keyword', cs, cs + 7)];
+    let pos = skipBlank(text, cs + 7, ce);
+    let name: Token | undefined;
+    let equals: Token | undefined;
+    let formula: Token | undefined;
+    let phase: Token | undefined;
+    const nameMatch = IDENTIFIER.exec(text.slice(pos, ce));
+    if (!nameMatch || (pos < ce && text[pos] === '=')) {
+      this.error('expected a species name after `species` (letters, digits and `_`, not starting with a digit)', pos < ce ? pos : cs, pos < ce ? pos + 1 : cs + 7);
+    } else {
+      name = token(text, 'name', pos, pos + nameMatch[0].length);
+      items.push(name);
+      pos = skipBlank(text, name.end, ce);
+    }
+    if (pos < ce && text[pos] === '=') {
+      equals = token(text, 'equals', pos, pos + 1);
+      items.push(equals);
+      pos = skipBlank(text, pos + 1, ce);
+    } else if (name) {
+      this.error('expected `=` and a formula after the species name, as in `species water = H2O (l)`', pos < ce ? pos : name.start, pos < ce ? ce : name.end);
+      pos = ce;
+    }
+    if (equals) {
+      const words = wordsIn(text, pos, ce);
+      if (words.length === 0) {
+        this.error('expected a formula after `=`', equals.start, equals.end);
+      } else {
+        const split = splitPhase(text, words[0]);
+        formula = split.species;
+        formula = { ...formula, kind: 'formula' };
+        items.push(formula);
+        if (split.phase) phase = split.phase;
+        let rest = words.slice(1);
+        if (!phase && rest.length > 0 && PHASE_WORD.test(rest[0].text)) {
+          phase = token(text, 'phase', rest[0].start, rest[0].end);
+          rest = rest.slice(1);
+        }
+        if (phase) items.push(phase);
+        if (rest.length > 0) {
+          const junkStart = rest[0].start;
+          this.error(
+            `unexpected \`${text.slice(junkStart, ce)}\` after the formula; a formula has no spaces, a phase is written (g), (l), (s) or (aq), and a note starts with \`#\``,
+            junkStart,
+            ce,
+          );
+          items.push(token(text, 'error', junkStart, ce));
+        }
+      }
+    }
+    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    const keyword = items[0];
+    this.startStatement({
+      kind: 'species',
+      header,
+      lines: [],
+      properties: [],
+      build: (children, properties): SpeciesNode => ({
+        type: 'species',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        keyword,
+        name,
+        equals,
+        formula,
+        phase,
+        properties,
+      }),
+    });
+  }
+
+  private batch(cs: number, ce: number, tail: Token[], line: Line): void {
+    const { text } = this;
+    const keyword = token(text, 'keyword', cs, cs + 5);
+    const items: SyntaxElement[] = [keyword];
+    let pos = skipBlank(text, cs + 5, ce);
+    let name: Token | undefined;
+    let at: Token | undefined;
+    let temperature: QuantityNode | undefined;
+    let pressure: QuantityNode | undefined;
+    const words = wordsIn(text, pos, ce);
+    const atIndex = words.findIndex((w) => w.text === 'at');
+    const nameWord = atIndex === 0 ? undefined : words[0];
+    if (!nameWord) {
+      this.error('expected a batch name after `batch`, as in `batch trial-1 at 25 °C`', keyword.start, keyword.end);
+    } else {
+      const m = LABEL_NAME.exec(nameWord.text);
+      if (m && m[0].length === nameWord.text.length) {
+        name = token(text, 'name', nameWord.start, nameWord.end);
+        items.push(name);
+      } else {
+        this.error(
+          `\`${nameWord.text}\` is not a valid batch name (letters, digits, \`_\` and \`-\`, not starting with a digit)`,
+          nameWord.start,
+          nameWord.end,
+        );
+        items.push(token(text, 'error', nameWord.start, nameWord.end));
+      }
+      pos = nameWord.end;
+    }
+    if (atIndex < 0) {
+      const after = words[nameWord ? 1 : 0];
+      this.error(
+        'expected `at` and a temperature after the batch name, as in `batch trial-1 at 25 °C, 1 atm`',
+        after ? after.start : (name ?? keyword).start,
+        after ? ce : (name ?? keyword).end,
+      );
+      if (after) items.push(token(text, 'error', after.start, ce));
+    } else {
+      if (atIndex > 1) {
+        const junk = words[1];
+        this.error('a batch name has no spaces; expected `at` after it', junk.start, words[atIndex - 1].end);
+        items.push(token(text, 'error', junk.start, words[atIndex - 1].end));
+      }
+      const atWord = words[atIndex];
+      at = token(text, 'keyword', atWord.start, atWord.end);
+      items.push(at);
+      pos = atWord.end;
+      const comma = text.indexOf(',', pos);
+      const tEnd = comma >= 0 && comma < ce ? comma : ce;
+      temperature = this.quantity(pos, tEnd, 'a temperature after `at`, as in `at 60 °C`', at);
+      if (temperature) items.push(temperature);
+      if (tEnd < ce) {
+        items.push(token(text, 'comma', tEnd, tEnd + 1));
+        const comma2 = text.indexOf(',', tEnd + 1);
+        const pEnd = comma2 >= 0 && comma2 < ce ? comma2 : ce;
+        pressure = this.quantity(tEnd + 1, pEnd, 'a pressure after the comma, as in `, 1 atm`', token(text, 'comma', tEnd, tEnd + 1));
+        if (pressure) items.push(pressure);
+        if (pEnd < ce) {
+          this.error('a batch line has a temperature and at most one pressure', pEnd, ce);
+          items.push(token(text, 'error', pEnd, ce));
+        }
+      }
+    }
+    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    this.startStatement({
+      kind: 'batch',
+      header,
+      lines: [],
+      properties: [],
+      build: (children, properties): BatchNode => ({
+        type: 'batch',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        keyword,
+        name,
+        at,
+        temperature,
+        pressure,
+        properties,
+      }),
+    });
+  }
+
+  private reaction(cs: number, ce: number, tail: Token[], line: Line): void {
+    const { text } = this;
+    const items: SyntaxElement[] = [];
+    let pos = cs;
+    let label: Token | undefined;
+    let colon: Token | undefined;
+    const labelMatch = /^([A-Za-z_][A-Za-z0-9_-]*)[ \t]*:/.exec(text.slice(cs, ce));
+    if (labelMatch) {
+      label = token(text, 'label', cs, cs + labelMatch[1].length);
+      const colonAt = cs + labelMatch[0].length - 1;
+      colon = token(text, 'colon', colonAt, colonAt + 1);
+      items.push(label, colon);
+      pos = skipBlank(text, colonAt + 1, ce);
+    }
+    const arrows: { start: number; end: number }[] = [];
+    const body = text.slice(pos, ce);
+    ARROWS.lastIndex = 0;
+    for (let m = ARROWS.exec(body); m; m = ARROWS.exec(body)) {
+      arrows.push({ start: pos + m.index, end: pos + m.index + m[0].length });
+    }
+    let arrow: Token | undefined;
+    let left: { terms: TermNode[]; pluses: Token[] } = { terms: [], pluses: [] };
+    let right: { terms: TermNode[]; pluses: Token[] } = { terms: [], pluses: [] };
+    if (arrows.length === 0) {
+      this.error(
+        'expected a statement: `species NAME = FORMULA`, `batch NAME at TEMPERATURE`, or a reaction with an arrow (`<=>`, `⇌`, `->` or `→`)',
+        pos,
+        ce,
+      );
+      items.push(token(text, 'error', pos, ce));
+    } else {
+      const a = arrows[0];
+      arrow = token(text, 'arrow', a.start, a.end);
+      const rightEnd = arrows.length > 1 ? arrows[1].start : ce;
+      if (arrows.length > 1) {
+        this.error('a reaction has exactly one arrow; write each step as its own reaction', arrows[1].start, ce);
+        items.push(token(text, 'error', arrows[1].start, ce));
+      }
+      left = this.side(pos, a.start, 'left', a);
+      right = this.side(a.end, rightEnd, 'right', a);
+      items.push(arrow);
+    }
+    items.push(...left.terms, ...left.pluses, ...right.terms, ...right.pluses);
+    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    if (!arrow) {
+      this.startStatement({ kind: 'error', header, build: errorStatement, lines: [], properties: [] });
+      return;
+    }
+    const theArrow = arrow;
+    this.startStatement({
+      kind: 'reaction',
+      header,
+      lines: [],
+      properties: [],
+      build: (children, properties): ReactionNode => ({
+        type: 'reaction',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        label,
+        colon,
+        left: left.terms,
+        arrow: theArrow,
+        right: right.terms,
+        properties,
+      }),
+    });
+  }
+
+  /** Terms of one side of a reaction, separated by ` + ` words. */
+  private side(from: number, to: number, which: 'left' | 'right', arrow?: { start: number; end: number }): { terms: TermNode[]; pluses: Token[] } {
+    const words = wordsIn(this.text, from, to);
+    if (words.length === 0) {
+      const at = arrow ?? { start: from, end: to };
+      this.error(`expected at least one term ${which === 'left' ? 'before' : 'after'} the arrow`, at.start, at.end);
+      return { terms: [], pluses: [] };
+    }
+    const terms: TermNode[] = [];
+    let group: Word[] = [];
+    const pluses: Token[] = [];
+    const flush = (plusAfter?: Word): void => {
+      if (group.length === 0) {
+        const where = plusAfter ?? words[words.length - 1];
+        this.error(
+          plusAfter ? 'expected a term before ` + `' : 'expected a term after ` + `',
+          where.start,
+          where.end,
+        );
+        return;
+      }
+      terms.push(this.term(group));
+      group = [];
+    };
+    for (const w of words) {
+      if (w.text === '+') {
+        flush(w);
+        pluses.push(token(this.text, 'plus', w.start, w.end));
+      } else {
+        group.push(w);
+      }
+    }
+    flush();
+    return { terms, pluses };
+  }
+
+  private term(words: Word[]): TermNode {
+    const { text } = this;
+    const items: Token[] = [];
+    let coefficient: Token | undefined;
+    let rest = words;
+    const first = words[0];
+    if (COEFFICIENT_WORD.test(first.text) && words.length > 1) {
+      coefficient = token(text, 'coefficient', first.start, first.end);
+      rest = words.slice(1);
+    } else {
+      const m = COEFFICIENT_PREFIX.exec(first.text);
+      if (m) {
+        coefficient = token(text, 'coefficient', first.start, first.start + m[0].length);
+        rest = [{ start: coefficient.end, end: first.end, text: first.text.slice(m[0].length) }, ...words.slice(1)];
+      }
+    }
+    if (coefficient) items.push(coefficient);
+    const speciesWord = rest[0];
+    if (COEFFICIENT_WORD.test(speciesWord.text) && rest.length === 1 && !coefficient) {
+      this.error(`expected a species or formula after the coefficient \`${speciesWord.text}\``, speciesWord.start, speciesWord.end);
+    }
+    const split = splitPhase(text, speciesWord);
+    items.push(split.species);
+    let phase = split.phase;
+    let extra = rest.slice(1);
+    if (!phase && extra.length > 0 && PHASE_WORD.test(extra[0].text)) {
+      phase = token(text, 'phase', extra[0].start, extra[0].end);
+      extra = extra.slice(1);
+    }
+    if (phase) items.push(phase);
+    if (extra.length > 0) {
+      const s = extra[0].start;
+      const e = extra[extra.length - 1].end;
+      this.error(
+        `expected \` + \` or the arrow before \`${text.slice(s, e)}\`; terms are separated by \` + \` with spaces on both sides`,
+        s,
+        e,
+      );
+      items.push(token(text, 'error', s, e));
+    }
+    const start = items[0].start;
+    const end = items[items.length - 1].end;
+    return {
+      type: 'term',
+      start,
+      end,
+      children: assemble(text, items, start, end),
+      coefficient,
+      species: split.species,
+      phase,
+    };
+  }
+
+  // ---- property lines -------------------------------------------------------------------
+
+  private propertyLine(cs: number, ce: number): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
+    const { text } = this;
+    const context = this.open?.kind;
+    const words = wordsIn(text, cs, ce);
+    const first = words[0];
+    const keyWord = /^[^\s=]+/.exec(first.text)?.[0] ?? first.text;
+    if (context === 'batch' && !(BATCH_KEYWORDS as readonly string[]).includes(keyWord)) {
+      return this.amountLine(cs, ce, words);
+    }
+    const key: Token[] = [];
+    if (keyWord === 'log' && words[1]?.text.startsWith('K')) {
+      const kEnd = words[1].start + (/^[^\s=]+/.exec(words[1].text)?.[0].length ?? 1);
+      key.push(token(text, 'keyword', first.start, first.start + 3), token(text, 'keyword', words[1].start, kEnd));
+    } else {
+      key.push(token(text, 'keyword', first.start, first.start + keyWord.length));
+    }
+    const keyText = key.map((k) => k.text).join(' ');
+    const items: SyntaxElement[] = [...key];
+    let pos = skipBlank(text, key[key.length - 1].end, ce);
+    let equals: Token | undefined;
+    if (pos < ce && text[pos] === '=') {
+      equals = token(text, 'equals', pos, pos + 1);
+      items.push(equals);
+      pos = skipBlank(text, pos + 1, ce);
+    }
+    const valueWords = wordsIn(text, pos, ce);
+    const atWord = valueWords.find((w) => w.text === 'at');
+    const valueEnd = atWord ? atWord.start : ce;
+    let value: QuantityNode | undefined;
+    const names: Token[] = [];
+    let at: Token | undefined;
+    let temperature: QuantityNode | undefined;
+    if (NAME_LIST_KEYS.has(keyText)) {
+      this.nameList(pos, valueEnd, keyText, key[0], items, names);
+    } else {
+      value = this.quantity(pos, valueEnd, `a value after \`${keyText}\``, key[key.length - 1]);
+      if (value) items.push(value);
+    }
+    if (atWord) {
+      at = token(text, 'keyword', atWord.start, atWord.end);
+      items.push(at);
+      temperature = this.quantity(atWord.end, ce, 'a temperature after `at`, as in `at 25 °C`', at);
+      if (temperature) items.push(temperature);
+    }
+    return {
+      children: items,
+      build: (children): PropertyNode => ({
+        type: 'property',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        key,
+        keyText,
+        equals,
+        value,
+        names,
+        at,
+        temperature,
+      }),
+    };
+  }
+
+  private nameList(from: number, to: number, keyText: string, key: Token, items: SyntaxElement[], names: Token[]): void {
+    const { text } = this;
+    const [s, e] = trimRange(text, from, to);
+    if (s === e) {
+      this.error(`expected ${keyText === 'uses' ? 'one or more reaction labels' : 'a species name'} after \`${keyText}\``, key.start, key.end);
+      return;
+    }
+    let pos = s;
+    while (pos < e) {
+      const comma = text.indexOf(',', pos);
+      const partEnd = comma >= 0 && comma < e ? comma : e;
+      const [ps, pe] = trimRange(text, pos, partEnd);
+      const m = LABEL_NAME.exec(text.slice(ps, pe));
+      if (ps === pe) {
+        this.error('expected a name between commas', pos, Math.max(partEnd, pos + 1));
+      } else if (!m || m[0].length !== pe - ps) {
+        this.error(`\`${text.slice(ps, pe)}\` is not a name (letters, digits, \`_\` and \`-\`); separate names with commas`, ps, pe);
+        items.push(token(text, 'error', ps, pe));
+      } else {
+        const t = token(text, 'name', ps, pe);
+        names.push(t);
+        items.push(t);
+      }
+      if (partEnd < e) items.push(token(text, 'comma', partEnd, partEnd + 1));
+      pos = partEnd + 1;
+    }
+    if (keyText === 'basis' && names.length > 1) {
+      this.error('`basis` names one species', names[1].start, names[names.length - 1].end);
+    }
+  }
+
+  private amountLine(cs: number, ce: number, words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
+    const { text } = this;
+    const split = splitPhase(text, words[0]);
+    const items: SyntaxElement[] = [split.species];
+    let phase = split.phase;
+    let pos = words[0].end;
+    if (!phase && words[1] && PHASE_WORD.test(words[1].text)) {
+      phase = token(text, 'phase', words[1].start, words[1].end);
+      pos = words[1].end;
+    }
+    if (phase) items.push(phase);
+    const value = this.quantity(pos, ce, `an amount after \`${split.species.text}\`, as in \`${split.species.text} 1.0 mol\` (or a batch keyword: ${BATCH_KEYWORDS.join(', ')})`, split.species);
+    if (value) items.push(value);
+    return {
+      children: items,
+      build: (children): AmountNode => ({
+        type: 'amount',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        species: split.species,
+        phase,
+        value,
+      }),
+    };
+  }
+
+  /** `NUMBER [UNIT]` in text[from, to); undefined (with an error) when there is no number. */
+  private quantity(from: number, to: number, what: string, anchor: { start: number; end: number }): QuantityNode | undefined {
+    const { text } = this;
+    const [s, e] = trimRange(text, from, to);
+    if (s === e) {
+      this.error(`expected ${what}`, anchor.start, anchor.end);
+      return undefined;
+    }
+    const firstWord = wordsIn(text, s, e)[0];
+    const m = NUMBER_PREFIX.exec(firstWord.text);
+    // A number glued to its unit (`60°C`, `2.5L`) is split; anything else keeps the whole word as
+    // the number token and the semantic layer explains what is wrong with it.
+    const numberEnd = m && m[0].length < firstWord.text.length && !/[\d.]/.test(firstWord.text[m[0].length]) ? s + m[0].length : firstWord.end;
+    const number = token(text, 'number', s, numberEnd);
+    const [us, ue] = trimRange(text, numberEnd, e);
+    const unit = us < ue ? token(text, 'unit', us, ue) : undefined;
+    const items: Token[] = unit ? [number, unit] : [number];
+    return { type: 'quantity', start: s, end: unit ? unit.end : number.end, children: assemble(text, items, s, unit ? unit.end : number.end), number, unit };
+  }
+
+  private errorLine(items: SyntaxElement[], line: Line): ErrorLineNode {
+    const children = assemble(this.text, items, line.start, line.breakEnd);
+    return { type: 'error-line', start: line.start, end: line.breakEnd, children };
+  }
+
+  /** Safety net: any error token without a syntax error over it gets a generic one. */
+  private reportStrayErrorTokens(tree: FileNode): void {
+    for (const t of tokensOf(tree)) {
+      if (t.kind !== 'error') continue;
+      if (this.errors.some((e) => e.start <= t.start && t.start < Math.max(e.end, e.start + 1))) continue;
+      this.error(`unexpected \`${t.text.slice(0, 40)}\``, t.start, t.end);
+    }
+  }
+}
+
+function errorStatement(children: SyntaxElement[]): ErrorLineNode {
+  return { type: 'error-line', start: children[0].start, end: children[children.length - 1].end, children };
+}
+
+function skipBlank(text: string, pos: number, end: number): number {
+  while (pos < end && isBlank(text[pos])) pos++;
+  return pos;
+}
+
+/** Splits a trailing `(g)`-like phase off a word: `H2O(l)` -> `H2O`, `(l)`. */
+function splitPhase(text: string, word: Word): { species: Token; phase?: Token } {
+  const m = PHASE_SUFFIX.exec(word.text);
+  if (m && m.index > 0) {
+    const at = word.start + m.index;
+    return { species: token(text, 'species-ref', word.start, at), phase: token(text, 'phase', at, word.end) };
+  }
+  return { species: token(text, 'species-ref', word.start, word.end) };
+}
+
+function looksLikeMisspelledKeyword(word: string): string | undefined {
+  const w = word.toLowerCase();
+  for (const kw of STATEMENT_KEYWORDS) {
+    if (w === kw) return kw;
+    if (Math.abs(w.length - kw.length) <= 1 && distanceAtMost1(w, kw)) return kw;
+  }
+  return undefined;
+}
+
+function distanceAtMost1(a: string, b: string): boolean {
+  if (a === b) return true;
+  let i = 0;
+  while (i < a.length && i < b.length && a[i] === b[i]) i++;
+  return a.slice(i + 1) === b.slice(i + 1) || a.slice(i) === b.slice(i + 1) || a.slice(i + 1) === b.slice(i);
+}

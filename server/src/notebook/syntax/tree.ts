@@ -1,0 +1,183 @@
+// The lossless syntax tree of a notebook: plain readonly interfaces told apart
+// by `type`. Every character of the source belongs to exactly one token, notes
+// and whitespace included, so the tokens of a file spell out its text again.
+// Named fields on a node point at tokens or nodes that are also in `children`.
+
+export type TokenKind =
+  | 'whitespace'
+  | 'newline'
+  | 'comment'
+  | 'keyword' // species, batch, at, and property keywords (K, density, vessel, ...)
+  | 'name' // a declared name: species, batch, or a name used in a property value
+  | 'label' // a reaction label (without its colon)
+  | 'colon'
+  | 'equals'
+  | 'comma'
+  | 'species-ref' // a term or amount line's species: a declared name or a formula (resolved later)
+  | 'formula' // a formula in a species declaration
+  | 'phase' // (g), (l), (s), (aq)
+  | 'coefficient'
+  | 'plus'
+  | 'arrow'
+  | 'number'
+  | 'unit'
+  | 'error'; // text the parser could not place
+
+export interface Token {
+  readonly type: 'token';
+  readonly kind: TokenKind;
+  readonly start: number;
+  readonly end: number;
+  readonly text: string;
+}
+
+export type SyntaxElement = Token | Node;
+
+interface NodeBase {
+  readonly start: number;
+  readonly end: number;
+  readonly children: readonly SyntaxElement[];
+}
+
+/** A number with an optional unit: `60 °C`, `1.0 mol`, `4.0`. */
+export interface QuantityNode extends NodeBase {
+  readonly type: 'quantity';
+  readonly number: Token;
+  readonly unit?: Token;
+}
+
+/** One term of a reaction side: `2 H2O(l)`, `1/2 O2 (g)`, `acid`. */
+export interface TermNode extends NodeBase {
+  readonly type: 'term';
+  readonly coefficient?: Token;
+  readonly species: Token;
+  readonly phase?: Token;
+}
+
+/** An indented `KEY [=] VALUE [at TEMPERATURE]` line under a statement. */
+export interface PropertyNode extends NodeBase {
+  readonly type: 'property';
+  /** One or two keyword tokens (`log K` is two). */
+  readonly key: readonly Token[];
+  readonly keyText: string;
+  readonly equals?: Token;
+  readonly value?: QuantityNode;
+  /** For name-list properties (`basis acid`, `uses R1, R2`). */
+  readonly names: readonly Token[];
+  readonly at?: Token;
+  readonly temperature?: QuantityNode;
+}
+
+/** An indented `SPECIES QUANTITY` line under a batch. */
+export interface AmountNode extends NodeBase {
+  readonly type: 'amount';
+  readonly species: Token;
+  readonly phase?: Token;
+  readonly value?: QuantityNode;
+}
+
+export type PropertyLine = PropertyNode | AmountNode | ErrorLineNode;
+
+/** `species NAME = FORMULA [(PHASE)]` with its property lines. */
+export interface SpeciesNode extends NodeBase {
+  readonly type: 'species';
+  readonly keyword: Token;
+  readonly name?: Token;
+  readonly equals?: Token;
+  readonly formula?: Token;
+  readonly phase?: Token;
+  readonly properties: readonly PropertyLine[];
+}
+
+/** `[LABEL:] SIDE ARROW SIDE` with its property lines. */
+export interface ReactionNode extends NodeBase {
+  readonly type: 'reaction';
+  readonly label?: Token;
+  readonly colon?: Token;
+  readonly left: readonly TermNode[];
+  readonly arrow: Token;
+  readonly right: readonly TermNode[];
+  readonly properties: readonly PropertyLine[];
+}
+
+/** `batch NAME at TEMPERATURE[, PRESSURE]` with its amount and property lines. */
+export interface BatchNode extends NodeBase {
+  readonly type: 'batch';
+  readonly keyword: Token;
+  readonly name?: Token;
+  readonly at?: Token;
+  readonly temperature?: QuantityNode;
+  readonly pressure?: QuantityNode;
+  readonly properties: readonly PropertyLine[];
+}
+
+/** A line the parser could not read as anything; its text is kept as error tokens. */
+export interface ErrorLineNode extends NodeBase {
+  readonly type: 'error-line';
+}
+
+export type StatementNode = SpeciesNode | ReactionNode | BatchNode | ErrorLineNode;
+
+export interface FileNode extends NodeBase {
+  readonly type: 'file';
+  readonly statements: readonly StatementNode[];
+}
+
+export type Node = FileNode | StatementNode | PropertyNode | AmountNode | TermNode | QuantityNode;
+
+export interface SyntaxError {
+  readonly code: 'syntax' | 'line-too-long';
+  readonly message: string;
+  readonly start: number;
+  readonly end: number;
+}
+
+export interface ParseResult {
+  readonly tree: FileNode;
+  readonly errors: readonly SyntaxError[];
+}
+
+/** All tokens under a node, in source order. */
+export function* tokensOf(element: SyntaxElement): Generator<Token> {
+  if (element.type === 'token') {
+    yield element;
+    return;
+  }
+  for (const child of element.children) yield* tokensOf(child);
+}
+
+/** The token containing `offset` (the one ending at it when `offset` is at a boundary and no other starts there). */
+export function tokenAt(root: SyntaxElement, offset: number): Token | undefined {
+  let node: SyntaxElement = root;
+  for (;;) {
+    if (node.type === 'token') return node;
+    let next: SyntaxElement | undefined;
+    for (const child of node.children) {
+      if (child.start <= offset && offset < child.end) {
+        next = child;
+        break;
+      }
+      if (child.end === offset && child.start < offset) next = child;
+    }
+    if (!next) return undefined;
+    node = next;
+  }
+}
+
+/** The chain of nodes from the root down to the innermost one containing `offset`. */
+export function nodePathAt(root: FileNode, offset: number): Node[] {
+  const path: Node[] = [root];
+  let node: Node = root;
+  for (;;) {
+    let next: Node | undefined;
+    for (const child of node.children) {
+      if (child.type !== 'token' && child.start <= offset && offset <= child.end) {
+        next = child;
+        if (offset < child.end) break;
+      }
+    }
+    if (!next) return path;
+    path.push(next);
+    node = next;
+  }
+}
