@@ -126,21 +126,26 @@ function parseUnitUncached(text: string): UnitResult {
   if ((unit as unknown as { value: unknown }).value !== null) {
     return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };
   }
+  const unitText = normaliseUnitText(trimmed);
   for (const [dimension, reference] of REFERENCE_UNITS) {
     if (unit.equalBase(m.unit(reference))) {
-      const unitText = normaliseUnitText(trimmed);
-      return {
-        ok: true,
-        dimension,
-        toSI: (v) => m.unit(v, unitText).toNumber(reference),
-      };
+      return { ok: true, dimension, toSI: linearToSI(m, unitText, reference) };
     }
   }
   if (unit.dimensions.every((d) => d === 0)) {
-    const unitText = normaliseUnitText(trimmed);
-    return { ok: true, dimension: 'dimensionless', toSI: (v) => m.unit(v, unitText).toNumber('') };
+    return { ok: true, dimension: 'dimensionless', toSI: linearToSI(m, unitText, '') };
   }
   return { ok: false, message: `\`${trimmed}\` is a unit of no quantity a notebook uses here` };
+}
+
+/**
+ * Every unit a notebook accepts converts to SI linearly (°C and °F with an offset), so the
+ * conversion is read from mathjs once and then applied as slope and intercept.
+ */
+function linearToSI(m: MathJsInstance, unitText: string, reference: string): (v: number) => number {
+  const intercept = m.unit(0, unitText).toNumber(reference);
+  const slope = m.unit(1, unitText).toNumber(reference) - intercept;
+  return intercept === 0 ? (v) => v * slope : (v) => intercept + v * slope;
 }
 
 /** Human name of a dimension, for messages ("expected a temperature"). */
