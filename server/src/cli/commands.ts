@@ -174,7 +174,7 @@ function balance(equation: string, json: boolean, io: CliIo): number {
     return 1;
   }
   if (solution.kind === 'several') {
-    io.err(`stillpoint: this equation can be balanced in ${solution.dimension} independent ways, so none is chosen: ${solution.reason}`);
+    io.err(`stillpoint: several independent balances exist (${solution.dimension}): element and charge balance do not fix the coefficients, so none is chosen; write the coefficients you mean`);
     return 1;
   }
   const text = rewriteEquation(reaction, solution.coefficients);
@@ -196,6 +196,9 @@ function describeInline(text: string, d: Diagnostic): string {
 
 // ---- formula -------------------------------------------------------------------------------
 
+/** Significant digits of a molar mass in JSON: beyond the atomic weights' precision, without float noise. */
+const MOLAR_MASS_DIGITS = 12;
+
 const PHASE_SUFFIX = /\s*\((g|l|s|aq)\)$/;
 
 function formula(input: string, json: boolean, io: CliIo): number {
@@ -210,7 +213,7 @@ function formula(input: string, json: boolean, io: CliIo): number {
         describeInline(input, {
           code: p.code === 'syntax' ? 'bad-formula' : p.code,
           severity: p.severity,
-          message: p.message + (p.fixes && p.fixes.length > 0 ? ` (write ${p.fixes.map((f) => `\`${f.replacement}\``).join(' or ')})` : ''),
+          message: p.message,
           start: offset + p.start,
           end: offset + p.end,
           fixes: [],
@@ -229,7 +232,7 @@ function formula(input: string, json: boolean, io: CliIo): number {
         ...(phase ? { phase: phase[1] } : {}),
         charge: f.charge,
         elements,
-        molar_mass: f.molarMass,
+        molar_mass: Number(f.molarMass.toPrecision(MOLAR_MASS_DIGITS)),
       }),
     );
   } else {

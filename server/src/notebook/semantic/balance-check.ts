@@ -51,7 +51,7 @@ export function balanceDiagnostics(reaction: ReactionModel): Diagnostic[] {
       out.push(
         diagnostic(
           'several-balances',
-          `this equation can be balanced in ${solution.dimension} independent ways, so no single fix is offered: ${solution.reason}; write the coefficients you mean, or split it into separate reactions`,
+          `several independent balances exist (${solution.dimension}): element and charge balance do not fix the coefficients, so no single fix is offered; write the coefficients you mean, or split it into separate reactions`,
           start,
           end,
         ),

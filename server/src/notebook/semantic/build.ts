@@ -5,7 +5,7 @@
 import { solveBalance, tallyBalance, type BalanceTerm } from '../../chem/balance';
 import { parseFormula, type Formula, type FormulaProblem } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
-import type { FileNode, PropertyLine, PropertyNode, Token, TermNode } from '../syntax/tree';
+import { forEachToken, type FileNode, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
 import { BATCH_KEYWORDS, IDENTIFIER, STATEMENT_KEYWORDS } from '../syntax/parser';
 import { diagnostic, type Diagnostic, type Fix } from './codes';
 import { balanceDiagnostics } from './balance-check';
@@ -518,19 +518,11 @@ export function speciesIdentity(s: ResolvedSpecies): string {
   return s.declared ? `decl:${s.declared.name}` : `formula:${s.key}(${s.phase ?? ''})`;
 }
 
-/** 1-based line number of an offset, for messages. */
+/** 1-based line number of an offset, for messages (rare: only duplicate reports need it). */
 function lineOf(tree: FileNode, offset: number): number {
   let line = 1;
-  const stack: FileNode['children'][number][] = [tree];
-  // Count newline tokens before the offset; the tree is lossless so this is exact.
-  while (stack.length > 0) {
-    const n = stack.pop()!;
-    if (n.type === 'token') {
-      if (n.kind === 'newline' && n.end <= offset) line++;
-      continue;
-    }
-    if (n.start > offset) continue;
-    for (const c of n.children) stack.push(c);
-  }
+  forEachToken(tree, (t) => {
+    if (t.kind === 'newline' && t.end <= offset) line++;
+  });
   return line;
 }

@@ -30,7 +30,7 @@ import type {
   TermNode,
   Token,
 } from './tree';
-import { tokensOf } from './tree';
+import { forEachToken } from './tree';
 
 /** Lines longer than this are not parsed: almost surely pasted data, and costly to analyse. */
 export const MAX_LINE_LENGTH = 4000;
@@ -66,6 +66,7 @@ export function parse(text: string): ParseResult {
 
 class Parser {
   private readonly errors: SyntaxError[] = [];
+  private readonly errorOffsets = new Set<number>();
   private readonly fileChildren: SyntaxElement[] = [];
   private readonly statements: StatementNode[] = [];
   private open: OpenStatement | undefined;
@@ -90,7 +91,8 @@ class Parser {
   }
 
   private error(message: string, start: number, end: number, code: SyntaxError['code'] = 'syntax'): void {
-    if (this.errors.some((e) => e.start === start)) return; // at most one problem per offset
+    if (this.errorOffsets.has(start)) return; // at most one problem per offset
+    this.errorOffsets.add(start);
     this.errors.push({ code, message, start, end: Math.max(end, start + 1) > this.text.length ? Math.max(end, start) : Math.max(end, start + 1) });
   }
 
@@ -653,8 +655,11 @@ class Parser {
 
   /** Safety net: any error token without a syntax error over it gets a generic one. */
   private reportStrayErrorTokens(tree: FileNode): void {
-    for (const t of tokensOf(tree)) {
-      if (t.kind !== 'error') continue;
+    const stray: Token[] = [];
+    forEachToken(tree, (t) => {
+      if (t.kind === 'error') stray.push(t);
+    });
+    for (const t of stray) {
       if (this.errors.some((e) => e.start <= t.start && t.start < Math.max(e.end, e.start + 1))) continue;
       this.error(`unexpected \`${t.text.slice(0, 40)}\``, t.start, t.end);
     }

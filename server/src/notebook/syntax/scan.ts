@@ -33,10 +33,9 @@ export interface Word {
   readonly text: string;
 }
 
-const BLANK = /[ \t\u00a0]/;
-
+/** Space, tab and no-break space separate words; line breaks are handled by splitLines. */
 export function isBlank(ch: string | undefined): boolean {
-  return ch !== undefined && BLANK.test(ch);
+  return ch === ' ' || ch === '\t' || ch === '\u00a0';
 }
 
 /** The words of text[from, to). */

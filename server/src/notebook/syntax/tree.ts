@@ -137,13 +137,24 @@ export interface ParseResult {
   readonly errors: readonly SyntaxError[];
 }
 
-/** All tokens under a node, in source order. */
-export function* tokensOf(element: SyntaxElement): Generator<Token> {
-  if (element.type === 'token') {
-    yield element;
-    return;
+/** Calls `fn` for every token under `element`, in source order (iterative: trees can be large). */
+export function forEachToken(element: SyntaxElement, fn: (token: Token) => void): void {
+  const stack: SyntaxElement[] = [element];
+  while (stack.length > 0) {
+    const e = stack.pop()!;
+    if (e.type === 'token') {
+      fn(e);
+      continue;
+    }
+    for (let i = e.children.length - 1; i >= 0; i--) stack.push(e.children[i]);
   }
-  for (const child of element.children) yield* tokensOf(child);
+}
+
+/** All tokens under a node, in source order. */
+export function tokensOf(element: SyntaxElement): Token[] {
+  const out: Token[] = [];
+  forEachToken(element, (t) => out.push(t));
+  return out;
 }
 
 /** The token containing `offset` (the one ending at it when `offset` is at a boundary and no other starts there). */
