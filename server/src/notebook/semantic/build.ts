@@ -324,6 +324,8 @@ class Builder {
       const d = this.formulaProblem(tok, p);
       if (d.code === 'unknown-element' && IDENTIFIER.test(tok.text) && IDENTIFIER.exec(tok.text)![0].length === tok.text.length) {
         this.report({ ...d, message: `${d.message} (or, if \`${tok.text}\` is a name, declare it with \`species ${tok.text} = FORMULA\`)` });
+      } else if (d.code === 'ambiguous-charge') {
+        this.report({ ...d, message: `${d.message}; the balance is checked once the charge is written unambiguously` });
       } else if (d.code === 'bad-formula' && /\+[A-Za-z0-9[(]/.test(tok.text)) {
         this.report({ ...d, message: `${d.message}; terms are separated by \` + \` with spaces on both sides` });
       } else {
