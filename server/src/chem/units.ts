@@ -44,6 +44,16 @@ function math(): MathJsInstance {
   const m = create(all, {});
   // Molarity is not a built-in mathjs unit: define it explicitly (1 M = 1 mol/L).
   m.createUnit('M', { definition: '1 mol/L', prefixes: 'short' });
+  // mathjs rounds these; use the definitions instead (NIST SP 811): 1 torr = 101325/760 Pa,
+  // 1 mmHg = 133.322387415 Pa (conventional), 1 psi = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)².
+  m.createUnit(
+    {
+      torr: { definition: `${101325 / 760} Pa` },
+      mmHg: { definition: '133.322387415 Pa' },
+      psi: { definition: `${(0.45359237 * 9.80665) / (0.0254 * 0.0254)} Pa` },
+    },
+    { override: true },
+  );
   instance = m;
   return m;
 }
@@ -74,7 +84,8 @@ export function parseNumber(text: string): NumberResult {
   if (!Number.isFinite(value) || Math.abs(value) > MAX_ABS_NUMBER) {
     return { ok: false, message: `the number \`${text}\` is too large to be meaningful (limit ${MAX_ABS_NUMBER})` };
   }
-  if (value !== 0 && Math.abs(value) < 1 / MAX_ABS_NUMBER) {
+  const mantissa = text.split(/[eE]/)[0];
+  if ((value === 0 && /[1-9]/.test(mantissa)) || (value !== 0 && Math.abs(value) < 1 / MAX_ABS_NUMBER)) {
     return { ok: false, message: `the number \`${text}\` is too small to be meaningful (limit ${1 / MAX_ABS_NUMBER})` };
   }
   return { ok: true, value };
