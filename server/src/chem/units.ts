@@ -132,7 +132,8 @@ function parseUnitUncached(text: string): UnitResult {
   try {
     unit = m.Unit.parse(normaliseUnitText(trimmed)) as Unit;
   } catch (e) {
-    return { ok: false, message: `unknown unit \`${trimmed}\`${e instanceof Error ? ` (${e.message.replace(/\.$/, '')})` : ''}` };
+    const detail = e instanceof Error && !/not found/.test(e.message) ? ` (${e.message.replace(/\.$/, '')})` : '';
+    return { ok: false, message: `unknown unit \`${trimmed}\`${detail}` };
   }
   if ((unit as unknown as { value: unknown }).value !== null) {
     return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };

@@ -27,7 +27,7 @@ export type StatementAt =
 
 export function analyse(text: string): Analysis {
   const syntax = parse(text);
-  const model = buildModel(syntax.tree);
+  const model = buildModel(syntax.tree, syntax.errors);
   const diagnostics: Diagnostic[] = [
     ...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)),
     ...model.diagnostics,

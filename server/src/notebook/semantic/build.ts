@@ -5,7 +5,7 @@
 import { solveBalance, tallyBalance, type BalanceTerm } from '../../chem/balance';
 import { parseFormula, type Formula, type FormulaProblem } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
-import { forEachToken, type FileNode, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
+import { forEachToken, type FileNode, type SyntaxError, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
 import { BATCH_KEYWORDS, IDENTIFIER, STATEMENT_KEYWORDS } from '../syntax/parser';
 import { diagnostic, type Diagnostic, type Fix } from './codes';
 import { balanceDiagnostics } from './balance-check';
@@ -26,8 +26,12 @@ import { KNOWN_PROPERTIES, readQuantity } from './properties';
 
 const RESERVED_NAMES: ReadonlySet<string> = new Set<string>([...STATEMENT_KEYWORDS, ...BATCH_KEYWORDS, 'at']);
 
-export function buildModel(tree: FileNode): NotebookModel {
-  return new Builder(tree).run();
+/**
+ * `syntaxErrors` are the parser's errors: a reaction whose line has one is not balance-checked,
+ * since its terms are incomplete and a balance report would only add noise.
+ */
+export function buildModel(tree: FileNode, syntaxErrors: readonly SyntaxError[] = []): NotebookModel {
+  return new Builder(tree, syntaxErrors).run();
 }
 
 class Builder {
@@ -37,7 +41,10 @@ class Builder {
   /** Formula text -> parse result, so a formula used many times is read once. */
   private readonly formulaCache = new Map<string, ReturnType<typeof parseFormula>>();
 
-  constructor(private readonly tree: FileNode) {}
+  constructor(
+    private readonly tree: FileNode,
+    private readonly syntaxErrors: readonly SyntaxError[],
+  ) {}
 
   run(): NotebookModel {
     for (const s of this.tree.statements) if (s.type === 'species') this.declareSpecies(s);
@@ -91,11 +98,11 @@ class Builder {
     };
     const purity = props.get('purity');
     if (purity && (purity.value <= 0 || purity.value > 1)) {
-      this.report(diagnostic('bad-quantity', 'purity must be more than 0 % and at most 100 %', purity.node.start, purity.node.end));
+      this.report(diagnostic('bad-quantity', 'purity must be more than 0 % and at most 100 %', purity.range.start, purity.range.end));
     }
     const density = props.get('density');
     if (density && density.value <= 0) {
-      this.report(diagnostic('bad-quantity', 'density must be positive', density.node.start, density.node.end));
+      this.report(diagnostic('bad-quantity', 'density must be positive', density.range.start, density.range.end));
     }
     const previous = this.species.get(name);
     if (previous) {
@@ -143,8 +150,8 @@ class Builder {
   private readProperties(
     lines: readonly PropertyLine[],
     owner: 'species' | 'reaction' | 'batch',
-  ): Map<string, { value: number; node: PropertyNode }> {
-    const found = new Map<string, { value: number; node: PropertyNode }>();
+  ): Map<string, PropertyValue> {
+    const found = new Map<string, PropertyValue>();
     const known = KNOWN_PROPERTIES[owner];
     for (const line of lines) {
       if (line.type !== 'property') continue;
@@ -170,7 +177,7 @@ class Builder {
       if (line.value) {
         const q = readQuantity(line.value, spec.dimensions, `\`${line.keyText}\``);
         for (const d of q.diagnostics) this.report(d);
-        if (q.value !== undefined && !found.has(line.keyText)) found.set(line.keyText, { value: q.value, node: line });
+        if (q.value !== undefined && !found.has(line.keyText)) found.set(line.keyText, { value: q.value, node: line, range: line.value });
       }
       if (line.temperature && !spec.temperature) {
         const at = line.at ?? line.temperature;
@@ -194,8 +201,13 @@ class Builder {
     this.checkSameSpeciesBothSides(terms);
     const constants = this.reactionConstants(node.properties);
     let balance: ReactionModel['balance'];
+    const headerEnd = node.children.find((c) => c.type === 'token' && c.kind === 'newline')?.start ?? node.end;
+    const lineHasSyntaxError = this.syntaxErrors.some((e) => e.start >= node.start && e.start < headerEnd);
     const complete =
-      node.left.length > 0 && node.right.length > 0 && terms.every((t) => t.species !== undefined && t.coefficient !== undefined);
+      !lineHasSyntaxError &&
+      node.left.length > 0 &&
+      node.right.length > 0 &&
+      terms.every((t) => t.species !== undefined && t.coefficient !== undefined);
     if (complete) {
       const balanceTerms: BalanceTerm[] = terms.map((t) => ({
         composition: t.species!.formula.composition,
@@ -257,6 +269,20 @@ class Builder {
 
   private readCoefficient(tok: Token): Rational | undefined {
     const text = tok.text.replace(/^\+/, '');
+    if (/[eE]/.test(text)) {
+      const magnitude = Math.abs(Number(text.replace(/−/g, '-')));
+      this.report(
+        diagnostic(
+          'bad-coefficient',
+          !Number.isFinite(magnitude) || magnitude > 10 ** MAX_COEFFICIENT_DIGITS
+            ? `coefficient \`${tok.text}\` is too large to be meaningful`
+            : `write the coefficient \`${tok.text}\` without an exponent, as an integer, decimal or fraction`,
+          tok.start,
+          tok.end,
+        ),
+      );
+      return undefined;
+    }
     const value = Rational.parse(text.replace(/−/g, '-'));
     const tooBig = text.replace(/[^0-9]/g, '').length > MAX_COEFFICIENT_DIGITS;
     if (!value || tooBig) {
@@ -405,7 +431,7 @@ class Builder {
     const volume = this.positive(props.get('volume'), 'the liquid volume');
     if (vessel !== undefined && volume !== undefined && volume >= vessel) {
       const v = props.get('volume')!;
-      this.report(diagnostic('bad-quantity', 'the liquid volume must be less than the vessel volume, leaving room for the gas', v.node.start, v.node.end));
+      this.report(diagnostic('bad-quantity', 'the liquid volume must be less than the vessel volume, leaving room for the gas', v.range.start, v.range.end));
     }
     const amounts: BatchAmount[] = [];
     const seen = new Map<string, BatchAmount>();
@@ -474,10 +500,10 @@ class Builder {
     };
   }
 
-  private positive(p: { value: number; node: PropertyNode } | undefined, what: string): number | undefined {
+  private positive(p: PropertyValue | undefined, what: string): number | undefined {
     if (!p) return undefined;
     if (p.value <= 0) {
-      this.report(diagnostic('bad-quantity', `${what} must be positive`, p.node.start, p.node.end));
+      this.report(diagnostic('bad-quantity', `${what} must be positive`, p.range.start, p.range.end));
       return undefined;
     }
     return p.value;
@@ -510,6 +536,13 @@ class Builder {
       }
     }
   }
+}
+
+/** A property's SI value, its line, and the range of the written value (for diagnostics). */
+interface PropertyValue {
+  readonly value: number;
+  readonly node: PropertyNode;
+  readonly range: { readonly start: number; readonly end: number };
 }
 
 /** Coefficients with more digits than this are typos, not stoichiometry. */

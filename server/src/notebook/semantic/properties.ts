@@ -37,6 +37,15 @@ export const KNOWN_PROPERTIES: Readonly<Record<'species' | 'reaction' | 'batch',
   },
 };
 
+/** "a temperature (e.g. °C or K)" or "one of: amount of substance (…), mass (…)". */
+function describeExpected(expected: readonly Dimension[]): string {
+  if (expected.length === 1) {
+    const d = describeDimension(expected[0]);
+    return /^[aeiou]/.test(d) ? `an ${d}` : `a ${d}`;
+  }
+  return `one of: ${expected.map(describeDimension).join('; ')}`;
+}
+
 export interface QuantityValue {
   /** SI value; undefined when the quantity could not be read. */
   readonly value?: number;
@@ -59,7 +68,7 @@ export function readQuantity(
   if (!num.ok) {
     out.push(diagnostic('bad-quantity', `${what}: ${num.message}`, node.number.start, node.number.end));
   }
-  const expectedText = expected.map(describeDimension).join(' or ');
+  const expectedText = describeExpected(expected);
   let dimension: Dimension | undefined;
   let toSI: ((v: number) => number) | undefined;
   if (!node.unit) {
@@ -67,17 +76,17 @@ export function readQuantity(
       dimension = 'dimensionless';
       toSI = (v) => v;
     } else {
-      out.push(diagnostic('bad-quantity', `${what} needs a unit: expected a ${expectedText}`, node.number.start, node.number.end));
+      if (num.ok) out.push(diagnostic('bad-quantity', `${what} needs a unit: expected ${expectedText}`, node.number.start, node.number.end));
     }
   } else {
     const unit = parseUnit(node.unit.text);
     if (!unit.ok) {
-      out.push(diagnostic('bad-quantity', `${what}: ${unit.message}; expected a ${expectedText}`, node.unit.start, node.unit.end));
+      out.push(diagnostic('bad-quantity', `${what}: ${unit.message}; expected ${expectedText}`, node.unit.start, node.unit.end));
     } else if (!expected.includes(unit.dimension)) {
       out.push(
         diagnostic(
           'bad-quantity',
-          `${what}: \`${node.unit.text}\` is a unit of ${describeDimension(unit.dimension)}; expected a ${expectedText}`,
+          `${what}: \`${node.unit.text}\` is a unit of ${describeDimension(unit.dimension)}; expected ${expectedText}`,
           node.unit.start,
           node.unit.end,
         ),

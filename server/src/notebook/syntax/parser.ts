@@ -47,7 +47,7 @@ export const LABEL_NAME = /^[A-Za-z_][A-Za-z0-9_-]*/;
 export const ARROWS = /<=>|⇌|->|→/g;
 const PHASE_WORD = /^\([a-z]{1,4}\)$/;
 const PHASE_SUFFIX = /\([a-z]{1,4}\)$/;
-const COEFFICIENT_WORD = /^[+\-−]?(?:\d+\/\d+|\d+(?:\.\d+)?|\.\d+)$/;
+const COEFFICIENT_WORD = /^[+\-−]?(?:\d+\/\d+|\d+(?:\.\d+)?(?:[eE][+\-−]?\d+)?|\.\d+)$/;
 const COEFFICIENT_PREFIX = /^[+\-−]?(?:\d+\/\d+|\d+(?:\.\d+)?|\.\d+)(?=[A-Za-z[(])/;
 const NUMBER_PREFIX = /^[+\-−]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+\-−]?\d+)?/;
 
@@ -105,7 +105,9 @@ class Parser {
         line.end,
         'line-too-long',
       );
-      const node = this.errorLine([token(text, 'error', line.start, line.end)], line);
+      const items: Token[] = [token(text, 'error', line.start, line.end)];
+      if (line.breakEnd > line.end) items.push(token(text, 'newline', line.end, line.breakEnd));
+      const node = this.errorLine(items, line);
       if (isBlank(text[line.start])) this.addProperty(node);
       else this.startStatement({ kind: 'error', header: [...node.children], build: errorStatement, lines: [], properties: [] });
       return;
@@ -199,11 +201,19 @@ class Parser {
     let equals: Token | undefined;
     let formula: Token | undefined;
     let phase: Token | undefined;
-    const nameMatch = IDENTIFIER.exec(text.slice(pos, ce));
-    if (!nameMatch || (pos < ce && text[pos] === '=')) {
+    // The name runs to the next blank or `=`; anything there that is not an identifier is reported
+    // as a bad name, and parsing goes on with `= FORMULA`.
+    let nameEnd = pos;
+    while (nameEnd < ce && !isBlank(text[nameEnd]) && text[nameEnd] !== '=') nameEnd++;
+    const nameText = text.slice(pos, nameEnd);
+    if (nameText.length === 0) {
       this.error('expected a species name after `species` (letters, digits and `_`, not starting with a digit)', pos < ce ? pos : cs, pos < ce ? pos + 1 : cs + 7);
+    } else if (IDENTIFIER.exec(nameText)?.[0] !== nameText) {
+      this.error(`\`${nameText}\` is not a valid species name: use letters, digits and \`_\`, not starting with a digit`, pos, nameEnd);
+      items.push(token(text, 'error', pos, nameEnd));
+      pos = skipBlank(text, nameEnd, ce);
     } else {
-      name = token(text, 'name', pos, pos + nameMatch[0].length);
+      name = token(text, 'name', pos, nameEnd);
       items.push(name);
       pos = skipBlank(text, name.end, ce);
     }
@@ -211,8 +221,10 @@ class Parser {
       equals = token(text, 'equals', pos, pos + 1);
       items.push(equals);
       pos = skipBlank(text, pos + 1, ce);
-    } else if (name) {
-      this.error('expected `=` and a formula after the species name, as in `species water = H2O (l)`', pos < ce ? pos : name.start, pos < ce ? ce : name.end);
+    } else if (pos > cs + 7) {
+      const anchor = name ?? { start: cs, end: cs + 7 };
+      this.error('expected `=` and a formula after the species name, as in `species water = H2O (l)`', pos < ce ? pos : anchor.start, pos < ce ? ce : anchor.end);
+      if (pos < ce) items.push(token(text, 'error', pos, ce));
       pos = ce;
     }
     if (equals) {
