@@ -5,7 +5,7 @@
 import { elementBySymbol } from '../../chem/elements';
 import { formatFormulaCharge, type Formula } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
-import { formatQuantity, parseUnit, trim } from '../../chem/units';
+import { formatQuantity, parseUnit, SI_UNIT_TEXT, trim } from '../../chem/units';
 import { tokenAt, type Token } from '../syntax/tree';
 import { PHASE_NAMES, type BatchModel, type Phase, type ReactionModel, type ResolvedSpecies, type SpeciesDecl } from '../semantic/model';
 import { KNOWN_PROPERTIES } from '../semantic/properties';
@@ -79,7 +79,20 @@ function quantityHover(tok: Token, analysis: Analysis): Hover | undefined {
   const u = parseUnit(tok.text);
   if (!u.ok) return undefined;
   void analysis;
-  return { markdown: `**${tok.text}**: ${u.dimension.replace('-', ' ')}, 1 ${tok.text} = ${formatQuantity(u.toSI(1), u.dimension)}`, start: tok.start, end: tok.end };
+  const si = SI_UNIT_TEXT[u.dimension];
+  const meaning =
+    u.dimension === 'temperature'
+      ? `0 ${tok.text} = ${trim(u.toSI(0))} K, and a step of 1 ${tok.text} is ${trim(u.toSI(1) - u.toSI(0))} K`
+      : u.dimension === 'percent' || u.dimension === 'equivalents' || u.dimension === 'dimensionless'
+        ? `1 ${tok.text} = ${trim(u.toSI(1))}`
+        : `1 ${tok.text} = ${labUnit(u.toSI(1), u.dimension, tok.text)}${trim(u.toSI(1))} ${si} (SI)`;
+  return { markdown: `**${tok.text}**: ${u.dimension.replace('-', ' ')}; ${meaning}`, start: tok.start, end: tok.end };
+}
+
+/** The value in the usual lab unit followed by ` = `, unless that unit is the one written. */
+function labUnit(value: number, dimension: Parameters<typeof formatQuantity>[1], written: string): string {
+  const lab = formatQuantity(value, dimension);
+  return lab.endsWith(` ${written}`) ? '' : `${lab} = `;
 }
 
 function resolvedMarkdown(s: ResolvedSpecies): string {

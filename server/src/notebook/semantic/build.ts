@@ -153,6 +153,7 @@ class Builder {
   ): Map<string, PropertyValue> {
     const found = new Map<string, PropertyValue>();
     const known = KNOWN_PROPERTIES[owner];
+    const seen = new Set<string>();
     for (const line of lines) {
       if (line.type !== 'property') continue;
       const spec = known[line.keyText];
@@ -169,6 +170,15 @@ class Builder {
         );
         continue;
       }
+      // K may be given at several temperatures; repeats at one temperature are found once the
+      // values are read (reactionConstants), so that a bad line does not count as a repeat.
+      if (line.keyText !== 'K' && seen.has(line.keyText)) {
+        this.report(
+          diagnostic('duplicate-property', `\`${line.keyText}\` is given twice; the first is used`, line.key[0].start, line.key[line.key.length - 1].end),
+        );
+        continue;
+      }
+      seen.add(line.keyText);
       if (spec.kind !== 'quantity') continue;
       if (line.keyText !== 'K' && found.has(line.keyText)) {
         this.report(diagnostic('duplicate-property', `\`${line.keyText}\` is given twice; the first is used`, line.key[0].start, line.key[line.key.length - 1].end));
@@ -254,6 +264,12 @@ class Builder {
       if (t.value === undefined) continue;
       if (t.value <= 0) {
         this.report(diagnostic('bad-quantity', 'temperature must be above absolute zero', line.temperature.start, line.temperature.end));
+        continue;
+      }
+      if (out.some((k) => Math.abs(k.temperature - t.value!) < SAME_TEMPERATURE_K)) {
+        this.report(
+          diagnostic('duplicate-property', '`K` is given twice for the same temperature; the first is used', line.key[0].start, line.key[line.key.length - 1].end),
+        );
         continue;
       }
       out.push({ value: q.value, temperature: t.value, node: line });
@@ -465,14 +481,14 @@ class Builder {
     let uses: ReactionModel[] | undefined;
     for (const line of node.properties) {
       if (line.type !== 'property') continue;
-      if (line.keyText === 'basis' && line.names[0]) {
+      if (line.keyText === 'basis' && line.names[0] && basis === undefined) {
         const tok = line.names[0];
         basis = tok.text;
         if (!amounts.some((a) => a.node.species.text === tok.text)) {
           this.report(diagnostic('bad-basis', `the basis \`${tok.text}\` must be one of this batch's species with an amount`, tok.start, tok.end));
         }
       }
-      if (line.keyText === 'uses') {
+      if (line.keyText === 'uses' && uses === undefined) {
         uses = [];
         for (const tok of line.names) {
           const r = reactions.find((x) => x.label === tok.text);
@@ -516,7 +532,12 @@ class Builder {
     if (!absolute) {
       for (const a of equiv) {
         this.report(
-          diagnostic('bad-basis', '`equiv` needs a species with an absolute amount (mol, g, mL, …) to be relative to; give one, or add `basis NAME`', a.node.start, a.node.end),
+          diagnostic(
+            'bad-basis',
+            '`equiv` needs a species with an absolute amount (mol, g, mL, …) to be relative to; give one, or add `basis NAME`',
+            (a.node.value ?? a.node.species).start,
+            (a.node.value ?? a.node.species).end,
+          ),
         );
       }
     }
@@ -544,6 +565,9 @@ interface PropertyValue {
   readonly node: PropertyNode;
   readonly range: { readonly start: number; readonly end: number };
 }
+
+/** Two K lines whose temperatures differ by less than this (K) are for the same temperature. */
+const SAME_TEMPERATURE_K = 1e-6;
 
 /** Coefficients with more digits than this are typos, not stoichiometry. */
 const MAX_COEFFICIENT_DIGITS = 12;

@@ -35,6 +35,8 @@ import { forEachToken } from './tree';
 /** Lines longer than this are not parsed: almost surely pasted data, and costly to analyse. */
 export const MAX_LINE_LENGTH = 4000;
 
+const BYTE_ORDER_MARK = 0xfeff;
+
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
 export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses'] as const;
@@ -76,7 +78,13 @@ class Parser {
   constructor(private readonly text: string) {}
 
   run(): ParseResult {
-    for (const line of splitLines(this.text)) this.line(line);
+    const lines = splitLines(this.text);
+    if (this.text.charCodeAt(0) === BYTE_ORDER_MARK && lines.length > 0) {
+      // A byte order mark is not part of the first statement: keep it as trivia.
+      this.fileChildren.push(token(this.text, 'whitespace', 0, 1));
+      lines[0] = { ...lines[0], start: 1 };
+    }
+    for (const line of lines) this.line(line);
     this.closeStatement();
     this.fileChildren.push(...this.pendingTrivia);
     const tree: FileNode = {
@@ -98,24 +106,26 @@ class Parser {
 
   private line(line: Line): void {
     const { text } = this;
-    if (line.end - line.start > MAX_LINE_LENGTH) {
+    let indentEnd = line.start;
+    while (indentEnd < line.end && isBlank(text[indentEnd])) indentEnd++;
+    let commentStart = indentEnd;
+    while (commentStart < line.end && text[commentStart] !== '#') commentStart++;
+    if (commentStart - line.start > MAX_LINE_LENGTH) {
+      // Only the text before a note counts: a note of any length is fine.
       this.error(
-        `line is ${line.end - line.start} characters long; lines longer than ${MAX_LINE_LENGTH} are not read (split it, or make it a note)`,
+        `line is ${commentStart - line.start} characters long; lines longer than ${MAX_LINE_LENGTH} are not read (split it, or make it a note)`,
         line.start,
-        line.end,
+        commentStart,
         'line-too-long',
       );
-      const items: Token[] = [token(text, 'error', line.start, line.end)];
+      const items: Token[] = [token(text, 'error', line.start, commentStart)];
+      if (commentStart < line.end) items.push(token(text, 'comment', commentStart, line.end));
       if (line.breakEnd > line.end) items.push(token(text, 'newline', line.end, line.breakEnd));
       const node = this.errorLine(items, line);
-      if (isBlank(text[line.start])) this.addProperty(node);
+      if (isBlank(text[line.start])) this.addProperty(node, { start: line.start, end: commentStart });
       else this.startStatement({ kind: 'error', header: [...node.children], build: errorStatement, lines: [], properties: [] });
       return;
     }
-    let indentEnd = line.start;
-    while (indentEnd < line.end && isBlank(text[indentEnd])) indentEnd++;
-    const hash = text.indexOf('#', indentEnd);
-    const commentStart = hash >= 0 && hash < line.end ? hash : line.end;
     const [cs, ce] = trimRange(text, indentEnd, commentStart);
     const tail: Token[] = [];
     if (commentStart < line.end) tail.push(token(text, 'comment', commentStart, line.end));
@@ -129,7 +139,7 @@ class Parser {
       const items = this.propertyLine(cs, ce);
       const children = assemble(text, [...items.children, ...tail], line.start, line.breakEnd);
       const node = items.build(children, line);
-      this.addProperty(node);
+      this.addProperty(node, { start: cs, end: ce });
       return;
     }
     this.closeStatement();
@@ -138,12 +148,13 @@ class Parser {
     this.topLevel(cs, ce, tail, line);
   }
 
-  private addProperty(node: PropertyLine): void {
+  /** `content` is the line's text without indentation and note, for the orphan-line error. */
+  private addProperty(node: PropertyLine, content: { start: number; end: number }): void {
     if (!this.open) {
       this.error(
         'an indented line must belong to a species, reaction or batch above it; remove the indentation to start a statement',
-        node.start,
-        node.end,
+        content.start,
+        content.end,
       );
       this.fileChildren.push(...this.pendingTrivia, node);
       this.pendingTrivia = [];
@@ -383,13 +394,15 @@ class Parser {
     let arrow: Token | undefined;
     let left: { terms: TermNode[]; pluses: Token[] } = { terms: [], pluses: [] };
     let right: { terms: TermNode[]; pluses: Token[] } = { terms: [], pluses: [] };
-    if (arrows.length === 0) {
+    if (arrows.length === 0 && label && pos === ce) {
+      this.error('expected an equation after the label, as in `esterify: acid + EtOH <=> ester + H2O(l)`', label.start, colon!.end);
+    } else if (arrows.length === 0) {
       this.error(
         'expected a statement: `species NAME = FORMULA`, `batch NAME at TEMPERATURE`, or a reaction with an arrow (`<=>`, `⇌`, `->` or `→`)',
         pos,
         ce,
       );
-      items.push(token(text, 'error', pos, ce));
+      if (pos < ce) items.push(token(text, 'error', pos, ce));
     } else {
       const a = arrows[0];
       arrow = token(text, 'arrow', a.start, a.end);
@@ -608,6 +621,7 @@ class Parser {
       if (partEnd < e) items.push(token(text, 'comma', partEnd, partEnd + 1));
       pos = partEnd + 1;
     }
+    if (text[e - 1] === ',') this.error('expected a name after the comma', e - 1, e);
     if (keyText === 'basis' && names.length > 1) {
       this.error('`basis` names one species', names[1].start, names[names.length - 1].end);
     }
