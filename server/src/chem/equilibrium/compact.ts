@@ -13,16 +13,32 @@ export interface Compact {
   readonly lnK: Float64Array;
   /** 1 for a mixture species (ln a depends on n), 0 for a pure phase. */
   readonly mixture: Uint8Array;
+  /** Positions of the mixture species. */
+  readonly mixtureIndex: Int32Array;
   /** Mole-fraction group (0 gas, 1 liquid) or -1. */
   readonly group: Int8Array;
   readonly offset: Float64Array;
-  /** Group amounts from species outside the variable set (inert members). */
+  /**
+   * Group amounts from species outside the variable set (inert members), plus the phantom
+   * amount while one is in use; mutable so the phantom can be removed.
+   */
   readonly groupInert: Float64Array;
+  /** Phantom inert amount of each group (0 when the group cannot vanish or has a real inert member). */
+  readonly phantom: Float64Array;
   /** Initial amounts of the variable species. */
   readonly n0: Float64Array;
   /** Scale for relative tests: Σ n0 over all species (at least the smallest positive double). */
   readonly total: number;
 }
+
+/**
+ * Amount of the phantom inert, relative to the total amount, given to a mole-fraction phase
+ * that could vanish (it has no inert member and the reactions can move its species into
+ * other phases). It keeps every mole fraction defined while the phase dwindles, so the
+ * Newton iterations never meet a phase of zero amount; its effect on activities is this
+ * small, and it is removed before the final polish.
+ */
+export const PHANTOM_FRACTION = 1e-30;
 
 export function compact(p: Prepared): Compact {
   const S = p.speciesCount;
@@ -46,6 +62,25 @@ export function compact(p: Prepared): Compact {
     offset[j] = p.offset[i];
     n0[j] = p.n0[i];
   }
+  const total = Math.max(p.totalAmount, Number.MIN_VALUE);
+  let mixtureCount = 0;
+  for (let j = 0; j < m; j++) mixtureCount += mixture[j];
+  const mixtureIndex = new Int32Array(mixtureCount);
+  for (let j = 0, q = 0; j < m; j++) if (mixture[j]) mixtureIndex[q++] = j;
+  const groupInert = Float64Array.from(p.groupInert);
+  const phantom = new Float64Array(2);
+  for (let g = 0; g < 2; g++) {
+    let members = 0;
+    let others = 0;
+    for (let j = 0; j < m; j++) {
+      if (group[j] === g) members++;
+      else others++;
+    }
+    if (members > 0 && others > 0 && groupInert[g] === 0) {
+      phantom[g] = PHANTOM_FRACTION * total;
+      groupInert[g] = phantom[g];
+    }
+  }
   return {
     m,
     rho,
@@ -53,11 +88,13 @@ export function compact(p: Prepared): Compact {
     nu,
     lnK,
     mixture,
+    mixtureIndex,
     group,
     offset,
-    groupInert: p.groupInert,
+    groupInert,
+    phantom,
     n0,
-    total: Math.max(p.totalAmount, Number.MIN_VALUE),
+    total,
   };
 }
 

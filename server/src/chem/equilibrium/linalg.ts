@@ -137,7 +137,8 @@ export interface RowEchelon {
  * `relativeTolerance` times the largest entry of `a` counts as zero.
  */
 export function reducedRowEchelon(a: ArrayLike<number>, rows: number, cols: number, relativeTolerance: number): RowEchelon {
-  const m = Float64Array.from({ length: rows * cols }, (_, i) => a[i]);
+  const m = new Float64Array(rows * cols);
+  for (let i = 0; i < rows * cols; i++) m[i] = a[i];
   let scale = 0;
   for (let i = 0; i < rows * cols; i++) scale = Math.max(scale, Math.abs(m[i]));
   const tol = relativeTolerance * scale;

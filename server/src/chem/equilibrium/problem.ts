@@ -56,8 +56,8 @@ export interface Prepared {
   readonly basis: Int32Array;
   /** Each active reaction as a combination of the basis: reactions × basis, row-major. */
   readonly basisCoefficients: Float64Array;
-  /** (reaction, direction ±1) in the order the reactions became able to run. */
-  readonly kicks: readonly (readonly [number, number])[];
+  /** Flat pairs (reaction, direction ±1) in the order the reactions became able to run. */
+  readonly kicks: readonly number[];
   /** Species touched by the active reactions, ascending. */
   readonly variable: Int32Array;
   /** Σ n0 over all species. */
@@ -72,7 +72,17 @@ function fail(message: string): PrepareOutcome {
   return { ok: false, message };
 }
 
-/** Checks the problem and builds everything the solvers need; never throws on bad input. */
+/**
+ * Checks the problem and builds everything the solvers need; never throws on bad input.
+ * Besides the checks of the brief, a reaction with only products or only reactants is
+ * invalid: no balanced reaction looks like that, and its extent would have no bound.
+ * Dependence: reactions are kept greedily in input order (Gaussian elimination); a later
+ * reaction that is a combination of earlier ones must have ln K equal to the same
+ * combination within DEPENDENT_LNK_TOLERANCE, else the problem is invalid (naming both).
+ * Formability: from the species present, a reaction can run forward once all its reactants
+ * can exist and backward once all its products can (a fixed point); reactions that can do
+ * neither are inactive, species never reached stay exactly zero.
+ */
 export function prepare(problem: EquilibriumProblem): PrepareOutcome {
   if (problem === null || typeof problem !== 'object') return fail('the problem is not an object');
   const { species, reactions, conditions } = problem;
@@ -84,14 +94,17 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
 
   const n0 = new Float64Array(S);
   let hasAqueous = false;
+  const speciesName = (i: number): string => (species[i] && typeof species[i].id === 'string' ? `"${species[i].id}"` : `#${i + 1}`);
   for (let i = 0; i < S; i++) {
     const sp = species[i];
-    const name = sp && typeof sp.id === 'string' ? `"${sp.id}"` : `#${i + 1}`;
-    if (!sp || !PHASES.includes(sp.phase)) return fail(`species ${name} has an unknown phase (expected g, l, aq, s or solvent)`);
-    if (typeof sp.n0 !== 'number' || Number.isNaN(sp.n0)) return fail(`species ${name} has an initial amount that is not a number`);
-    if (!Number.isFinite(sp.n0)) return fail(`species ${name} has an infinite initial amount`);
-    if (sp.n0 < 0) return fail(`species ${name} has a negative initial amount (${sp.n0} mol)`);
-    n0[i] = sp.n0;
+    if (!sp || !PHASES.includes(sp.phase)) return fail(`species ${speciesName(i)} has an unknown phase (expected g, l, aq, s or solvent)`);
+    const amount = sp.n0;
+    if (!(amount >= 0) || amount === Infinity) {
+      if (typeof amount !== 'number' || Number.isNaN(amount)) return fail(`species ${speciesName(i)} has an initial amount that is not a number`);
+      if (amount === Infinity) return fail(`species ${speciesName(i)} has an infinite initial amount`);
+      return fail(`species ${speciesName(i)} has a negative initial amount (${amount} mol)`);
+    }
+    n0[i] = amount;
     if (sp.phase === 'aq') hasAqueous = true;
   }
 
@@ -118,29 +131,30 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
 
   const nu = new Float64Array(R * S);
   const lnK = new Float64Array(R);
+  const reactionName = (r: number): string => (reactions[r] && typeof reactions[r].label === 'string' ? `"${reactions[r].label}"` : `#${r + 1}`);
   for (let r = 0; r < R; r++) {
     const re = reactions[r];
-    const name = re && typeof re.label === 'string' ? `"${re.label}"` : `#${r + 1}`;
-    if (!re || !Array.isArray(re.nu)) return fail(`reaction ${name} has no stoichiometric coefficients`);
-    if (re.nu.length !== S) return fail(`reaction ${name} has ${re.nu.length} stoichiometric coefficients for ${S} species`);
+    if (!re || !Array.isArray(re.nu)) return fail(`reaction ${reactionName(r)} has no stoichiometric coefficients`);
+    if (re.nu.length !== S) return fail(`reaction ${reactionName(r)} has ${re.nu.length} stoichiometric coefficients for ${S} species`);
     let hasReactant = false;
     let hasProduct = false;
     for (let i = 0; i < S; i++) {
       const v = re.nu[i];
-      if (!isFiniteNumber(v)) return fail(`reaction ${name} has a coefficient for species "${species[i].id}" that is not a finite number`);
+      if (!isFiniteNumber(v)) return fail(`reaction ${reactionName(r)} has a coefficient for species "${species[i].id}" that is not a finite number`);
       nu[r * S + i] = v;
       if (v < 0) hasReactant = true;
       if (v > 0) hasProduct = true;
     }
-    if (!hasReactant && !hasProduct) return fail(`reaction ${name} has all stoichiometric coefficients zero`);
-    if (!hasReactant) return fail(`reaction ${name} has no reactants (a balanced reaction needs both sides)`);
-    if (!hasProduct) return fail(`reaction ${name} has no products (a balanced reaction needs both sides)`);
-    if (!isFiniteNumber(re.lnK)) return fail(`reaction ${name} has a ln K that is not a finite number`);
+    if (!hasReactant && !hasProduct) return fail(`reaction ${reactionName(r)} has all stoichiometric coefficients zero`);
+    if (!hasReactant) return fail(`reaction ${reactionName(r)} has no reactants (a balanced reaction needs both sides)`);
+    if (!hasProduct) return fail(`reaction ${reactionName(r)} has no products (a balanced reaction needs both sides)`);
+    if (!isFiniteNumber(re.lnK)) return fail(`reaction ${reactionName(r)} has a ln K that is not a finite number`);
     lnK[r] = re.lnK;
   }
 
   // Linear dependence among all reactions: a dependent reaction's ln K must agree.
-  const allRows = Array.from({ length: R }, (_, r) => r);
+  const allRows: number[] = [];
+  for (let r = 0; r < R; r++) allRows.push(r);
   const dependence = independentRows(nu, S, allRows);
   for (const dep of dependence.dependent) {
     let combined = 0;
@@ -151,7 +165,7 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
       combined += c * lnK[dependence.basis[k]];
       magnitude += Math.abs(c * lnK[dependence.basis[k]]);
     }
-    if (Math.abs(combined - lnK[dep.row]) > DEPENDENT_LNK_TOLERANCE + LNK_ROUNDING * magnitude) {
+    if (!(Math.abs(combined - lnK[dep.row]) <= DEPENDENT_LNK_TOLERANCE + LNK_ROUNDING * magnitude)) {
       const parts = dependence.basis.filter((_, k) => dep.coefficients[k] !== 0).map((b) => `"${reactions[b].label}"`);
       return fail(
         `reaction "${reactions[dep.row].label}" is a combination of ${parts.join(', ')} but its ln K (${lnK[dep.row]}) ` +
@@ -165,17 +179,17 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
   for (let i = 0; i < S; i++) if (n0[i] > 0) formable[i] = 1;
   const runForward = new Uint8Array(R);
   const runBackward = new Uint8Array(R);
-  const kicks: (readonly [number, number])[] = [];
+  const kicks: number[] = [];
   for (let changed = true; changed; ) {
     changed = false;
     for (let r = 0; r < R; r++) {
-      for (const dir of [1, -1]) {
+      for (let dir = 1; dir >= -1; dir -= 2) {
         if ((dir === 1 ? runForward : runBackward)[r]) continue;
         let ok = true;
         for (let i = 0; i < S && ok; i++) if (nu[r * S + i] * dir < 0 && !formable[i]) ok = false;
         if (!ok) continue;
         (dir === 1 ? runForward : runBackward)[r] = 1;
-        if (!runForward[r] || !runBackward[r]) kicks.push([r, dir]);
+        if (!runForward[r] || !runBackward[r]) kicks.push(r, dir);
         for (let i = 0; i < S; i++) if (nu[r * S + i] * dir > 0) formable[i] = 1;
         changed = true;
       }
@@ -199,7 +213,10 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
 
   const touched = new Uint8Array(S);
   for (const r of basis) for (let i = 0; i < S; i++) if (nu[r * S + i] !== 0) touched[i] = 1;
-  const variable = Int32Array.from(Array.from({ length: S }, (_, i) => i).filter((i) => touched[i] === 1));
+  let touchedCount = 0;
+  for (let i = 0; i < S; i++) touchedCount += touched[i];
+  const variable = new Int32Array(touchedCount);
+  for (let i = 0, j = 0; i < S; i++) if (touched[i]) variable[j++] = i;
 
   // Activity models. A mole-fraction phase with a single member (no inert member either)
   // is a pure phase: its activity is constant while it is present.
@@ -288,12 +305,14 @@ interface Dependence {
  * coefficients on the kept rows.
  */
 function independentRows(nu: Float64Array, S: number, rows: readonly number[]): Dependence {
+  if (rows.length === 1) return { basis: [rows[0]], dependent: [] }; // a reaction with a non-zero coefficient is independent
   const kept: number[] = [];
   const reduced: Float64Array[] = []; // echelon rows
   const pivot: number[] = [];
   const combos: Float64Array[] = []; // echelon row = Σ combo_k · original(kept_k), over rows.length
   const dependent: { row: number; coefficients: Float64Array }[] = [];
   const count = rows.length;
+  if (count === 0) return { basis: [], dependent };
   for (let t = 0; t < count; t++) {
     const r = rows[t];
     const v = nu.slice(r * S, r * S + S);
@@ -317,10 +336,8 @@ function independentRows(nu: Float64Array, S: number, rows: readonly number[]): 
       }
     }
     if (best < 0) {
-      // original(r) ≈ Σ combo_k · original(kept_k)
-      const coefficients = new Float64Array(kept.length);
-      for (let k = 0; k < kept.length; k++) coefficients[k] = combo[k];
-      dependent.push({ row: r, coefficients });
+      // original(r) ≈ Σ combo_k · original(kept_k); padded to the final basis size below.
+      dependent.push({ row: r, coefficients: combo });
     } else {
       const own = new Float64Array(count);
       for (let k = 0; k < count; k++) own[k] = -combo[k];
@@ -331,5 +348,7 @@ function independentRows(nu: Float64Array, S: number, rows: readonly number[]): 
       combos.push(own);
     }
   }
+  // Coefficients on the basis as finally kept (rows kept after a dependent one get 0).
+  for (const dep of dependent) dep.coefficients = dep.coefficients.slice(0, kept.length);
   return { basis: kept, dependent };
 }

@@ -8,6 +8,8 @@ import { PURE, type Prepared } from './problem';
 const U_TOLERANCE = 4 * Number.EPSILON;
 /** ln of the smallest positive normal double: δ below e^U_MIN would lose precision (subnormal). */
 const U_MIN = Math.log(2.2250738585072014e-308);
+/** Net coefficient of ln δ at a bound below which the ln δ terms cancel (a whole phase vanishing in step). */
+const LN_DELTA_CANCELLATION = 1e-12;
 /** Iteration cap of the safeguarded Newton/bisection (bisection alone needs about 60 steps). */
 const MAX_ITERATIONS = 200;
 
@@ -117,10 +119,10 @@ export function solveSingleReaction(p: Prepared, r: number, n: Float64Array): Si
 
   // The bounds and ln Q − ln K there (a limit: finite when only pure phases run out).
   const xiHi = setBase(w, n0, hiL);
-  const fHi = boundValue(w, -1);
+  const fHi = boundValue(w);
   if (fHi <= 0) return finish(w, n, 0, 1, xiHi, 0);
   const xiLo = setBase(w, n0, loL);
-  const fLo = boundValue(w, 1);
+  const fLo = boundValue(w);
   if (fLo >= 0) return finish(w, n, 0, 1, xiLo, 0);
 
   // Which bound is nearer the root: the sign at the midpoint.
@@ -164,6 +166,11 @@ export function solveSingleReaction(p: Prepared, r: number, n: Float64Array): Si
     if (h > 0) hi = u;
     else lo = u;
     let next = u - h / (delta * e.df);
+    const tol = U_TOLERANCE * Math.max(1, Math.abs(u));
+    if (Math.abs(next - u) <= tol) {
+      if (next > lo && next < hi) u = next;
+      break;
+    }
     if (!(next > lo && next < hi)) next = lo === -Infinity ? hi - Math.max(1, 2 * (hi - u)) : 0.5 * (lo + hi);
     if (next < U_MIN) {
       if (lo === -Infinity && u === U_MIN) {
@@ -171,11 +178,7 @@ export function solveSingleReaction(p: Prepared, r: number, n: Float64Array): Si
       }
       next = U_MIN;
     }
-    const tol = U_TOLERANCE * Math.max(1, Math.abs(u));
-    if (Math.abs(next - u) <= tol || hi - lo <= tol) {
-      u = next;
-      break;
-    }
+    if (hi - lo <= tol) break;
     u = next;
   }
   return finish(w, n, Math.exp(u), sigma, xiBound, iterations);
@@ -213,11 +216,11 @@ function setBase(w: Work, n0: Float64Array, L0: number): number {
 }
 
 /**
- * lim δ→0+ of ln Q − ln K at ξ = bound + σ·δ from the base amounts: species at 0 contribute
+ * lim δ→0+ of ln Q − ln K at distance δ from the bound (base amounts): species at 0 contribute
  * ν·ln(|ν|·δ) and an emptied mole-fraction group −Δν·ln(|Δν|·δ); the total coefficient of
  * ln δ decides an infinite limit, otherwise the finite rest is the limit.
  */
-function boundValue(w: Work, sigma: number): number {
+function boundValue(w: Work): number {
   let finite = w.constant;
   let lnDeltaCoefficient = 0;
   for (let j = 0; j < w.count; j++) {
@@ -241,7 +244,7 @@ function boundValue(w: Work, sigma: number): number {
     }
   }
   // Exact cancellation of the ln δ terms (a whole phase vanishing together) leaves a finite limit.
-  if (Math.abs(lnDeltaCoefficient) > 1e-12) return sigma * lnDeltaCoefficient > 0 ? Number.NEGATIVE_INFINITY : Number.POSITIVE_INFINITY;
+  if (Math.abs(lnDeltaCoefficient) > LN_DELTA_CANCELLATION) return lnDeltaCoefficient > 0 ? Number.NEGATIVE_INFINITY : Number.POSITIVE_INFINITY;
   return finite;
 }
 

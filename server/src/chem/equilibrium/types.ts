@@ -59,7 +59,9 @@ export interface EquilibriumResult {
    * ln Q per reaction at equilibrium. Q follows the usual convention for heterogeneous
    * equilibria: a pure phase (solid, solvent, or the only species of a gas phase at
    * constant pressure or of the liquid phase) enters with its pure-phase activity (1, or
-   * P/P° for a pure gas) whether or not it is present, so a used-up solid shows Q < K.
+   * P/P° for a pure gas) whether or not it is present, so a used-up solid shows Q < K. A
+   * species of a mixture phase that is absent has activity 0, so ln Q is ±Infinity then (as
+   * for lnQ0 below).
    */
   readonly lnQ: readonly number[];
   /**
@@ -73,9 +75,12 @@ export interface EquilibriumResult {
   readonly pressure: number;
   /** Total amount of gas, mol (inert gases included). */
   readonly gasMoles: number;
-  /** m^3: ideal-gas volume at constant pressure (0 without gas); the given V at constant volume. */
+  /** m^3: ideal-gas volume at constant pressure (0 without gas); the given V at constant volume (0 if no species is a gas). */
   readonly gasVolume: number;
-  /** Indices of solid and solvent species absent at equilibrium (used up or never formed). */
+  /**
+   * Indices of solid and solvent species absent at equilibrium (used up or never formed). A
+   * gas or liquid phase that is absent shows as zero amounts and gasMoles = 0.
+   */
   readonly absentPhases: readonly number[];
   /** Reactions that cannot run in either direction from what is present (extent 0). */
   readonly inactiveReactions: readonly number[];

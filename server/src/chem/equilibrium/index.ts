@@ -1,0 +1,14 @@
+// The chemical equilibrium solver of the chemistry core: the public API.
+export { activities } from './activity';
+export { CONSERVATION_TOLERANCE, LNQ_TOLERANCE, solveEquilibrium } from './solve';
+export {
+  GAS_CONSTANT,
+  STANDARD_CONCENTRATION,
+  STANDARD_PRESSURE,
+  type EquilibriumProblem,
+  type EquilibriumResult,
+  type SolverConditions,
+  type SolverPhase,
+  type SolverReaction,
+  type SolverSpecies,
+} from './types';

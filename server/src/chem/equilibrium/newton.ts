@@ -1,0 +1,717 @@
+// The general path, stage 1: Newton's method on the convex Gibbs (Helmholtz at
+// constant volume) energy in the space of reaction extents, with a line search
+// on the directional derivative and an active set for pure phases (solids,
+// solvent) that run out or never form.
+import { groupTotals, logActivities, type Compact } from './compact';
+import { luFactor, luSolve, modifiedCholeskySolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
+import type { Prepared } from './problem';
+
+/** Each reaction that first makes a species formable is run this fraction of the way to its limit, for a strictly interior start. */
+export const KICK_FRACTION = 0.1;
+/** A phase with a phantom whose real amount is at most this fraction of the total may be re-seeded. */
+export const NUCLEATION_FRACTION = 1e-9;
+/**
+ * Subspace optimum reached when no species would change by more than this fraction of
+ * max(n_j, RESOLUTION·total) in a full Newton step: the major species are then accurate
+ * enough for the quadratically convergent polish to finish.
+ */
+export const STEP_TOLERANCE = 1e-6;
+/**
+ * Amounts below this fraction of the total are trace for the extent iteration: a step
+ * that shrinks one cannot be resolved (n + t·d cancels), so a shrinking trace species'
+ * step is measured against this floor and its precision left to the log-amount polish.
+ * A growing species is measured against its own amount.
+ */
+export const RESOLUTION = 1e-9;
+/** The subspace optimum is also reached when the Newton decrement λ² = −gᵀp is below this times the total amount. */
+export const DECREMENT_TOLERANCE = 1e-24;
+/** A species change within this many rounding units of the terms that form it is noise. */
+const DIRECTION_NOISE = 64 * Number.EPSILON;
+/** A line-search step that changes no species by more than this fraction (of max(n, floor)) made no progress. */
+const STALL_CHANGE = 4 * Number.EPSILON;
+/**
+ * After a stall, a Newton step of at most this relative size, or a Newton decrement (the
+ * Gibbs energy still to gain, in units of RT) of at most STALL_DECREMENT_TOLERANCE times
+ * the total amount, is accepted as a start for the polish: what is left is in species too
+ * small to matter to G (major-species errors below ~1e-5), which the polish resolves.
+ */
+export const STALL_STEP_TOLERANCE = 1e-3;
+export const STALL_DECREMENT_TOLERANCE = 1e-10;
+/** Smallest pivot of the Jacobi-scaled reduced Hessian (modified Cholesky): zero-curvature directions get a large finite step. */
+export const MIN_PIVOT = 1e-10;
+/** A pure phase held at zero is released when its multiplier (in ln units) is below minus this. */
+export const MULTIPLIER_TOLERANCE = 1e-9;
+/** Line search accepts a step t when the directional derivative satisfies φ'(t) <= this × |φ'(0)| (a decrease for convex φ). */
+export const LINE_SEARCH_SLOPE = 0.5;
+/** Iteration cap of the extent-space Newton loop, active-set changes included. */
+export const MAX_ITERATIONS = 500;
+/** Below this fraction of the largest amount a mixture species counts as trace for the adapted basis. */
+const TRACE_FRACTION = 1e-6;
+/** Pivot threshold of the adapted basis: a column qualifies if its entry is at least this fraction of the largest. */
+const BASIS_PIVOT_RATIO = 0.01;
+/** Step growth per expansion of the line search, and the most expansions (4^30 ≈ 1e18). */
+const EXPANSION_FACTOR = 4;
+const MAX_EXPANSIONS = 30;
+/** Iteration cap of the one-dimensional root find of φ' in the line search. */
+const LINE_SEARCH_ITERATIONS = 60;
+/** Relative pivot tolerance for ranks of constraint and stoichiometric matrices. */
+export const RANK_TOLERANCE = 1e-10;
+/**
+ * The extent iteration does not push a mixture amount below this fraction of the total
+ * (a boundary for the line search): smaller amounts would approach subnormal doubles,
+ * where n + t·d is quantised; the log-amount polish takes them the rest of the way.
+ */
+export const AMOUNT_FLOOR = 1e-250;
+/**
+ * A mixture species already below this fraction of the total that the step would take
+ * under AMOUNT_FLOOR stays at the floor instead of limiting the step: in the adapted
+ * basis it is the pivot of its own direction, so its change (about n·|ln Q/K|) is far
+ * below anything the other species or conservation can notice; the polish, referenced
+ * to n0, then puts it at its true value.
+ */
+export const CLAMPABLE_AMOUNT = 1e-200;
+/** A mixture amount that rounding would make non-positive keeps this fraction of its previous value. */
+const POSITIVE_FLOOR = 2 ** -40;
+
+/** Directions of the reduced space: reactions combined so that pure phases held at zero stay zero. */
+export interface Directions {
+  readonly k: number;
+  /** Species change of each direction, k × m. */
+  readonly s: Float64Array;
+  /** Σ z·ln K of each direction. */
+  readonly kappa: Float64Array;
+  /** Each direction in basis-reaction extents, k × rho. */
+  readonly z: Float64Array;
+}
+
+/** Held-at-zero flags of a variable species: free, an independent active constraint, or implied by the others. */
+export const FREE = 0;
+export const HELD = 1;
+export const IMPLIED = 2;
+
+export interface ExtentState {
+  readonly n: Float64Array;
+  readonly xi: Float64Array;
+  readonly held: Uint8Array;
+  iterations: number;
+}
+
+export interface StageOutcome {
+  readonly ok: boolean;
+  readonly message?: string;
+  /** A variable species (compact index) whose equilibrium amount is below the double range: retrying cannot help. */
+  readonly underflow?: number;
+}
+
+/** The starting point: n0, then each reaction that first makes a species formable is run a fraction of the way (closure order). */
+export function initialState(c: Compact, p: Prepared): ExtentState {
+  const S = p.speciesCount;
+  const n = Float64Array.from(c.n0);
+  const xi = new Float64Array(c.rho);
+  const position = new Int32Array(S).fill(-1);
+  for (let j = 0; j < c.m; j++) position[c.species[j]] = j;
+  for (let q = 0; q < p.kicks.length; q += 2) {
+    const r = p.kicks[q];
+    const dir = p.kicks[q + 1];
+    let limit = Infinity;
+    for (let i = 0; i < S; i++) {
+      const v = p.nu[r * S + i] * dir;
+      if (v < 0) limit = Math.min(limit, n[position[i]] / -v);
+    }
+    if (!(limit > 0) || !Number.isFinite(limit)) continue;
+    const eps = KICK_FRACTION * limit * dir;
+    for (let i = 0; i < S; i++) {
+      const v = p.nu[r * S + i];
+      if (v !== 0) n[position[i]] += v * eps;
+    }
+    for (let k = 0; k < c.rho; k++) xi[k] += p.basisCoefficients[r * c.rho + k] * eps;
+  }
+  for (let j = 0; j < c.m; j++) if (n[j] < 0) n[j] = 0;
+  return { n, xi, held: new Uint8Array(c.m), iterations: 0 };
+}
+
+/**
+ * Re-seeds a mole-fraction phase that dwindled to its phantom amount (real amount at most
+ * NUCLEATION_FRACTION of the total): each basis reaction that makes net amounts of its
+ * species, and changes no held phase, is run KICK_FRACTION of the way to its limit in that
+ * direction. Convexity means the Newton iteration then either grows the phase (it was
+ * stable, but its gain in G at phantom level was below rounding) or removes it again.
+ * Returns whether anything was moved.
+ */
+export function renucleate(c: Compact, st: ExtentState): boolean {
+  const { m, rho } = c;
+  const { n, xi, held } = st;
+  let moved = false;
+  for (let g = 0; g < 2; g++) {
+    if (!(c.phantom[g] > 0)) continue;
+    let real = 0;
+    for (let j = 0; j < m; j++) if (c.group[j] === g) real += n[j];
+    if (real > NUCLEATION_FRACTION * c.total) continue;
+    for (let r = 0; r < rho; r++) {
+      let net = 0;
+      let touchesHeld = false;
+      for (let j = 0; j < m; j++) {
+        const v = c.nu[r * m + j];
+        if (v === 0) continue;
+        if (c.group[j] === g) net += v;
+        if (held[j] !== FREE) touchesHeld = true;
+      }
+      if (net === 0 || touchesHeld) continue;
+      const dir = net > 0 ? 1 : -1;
+      let limit = Infinity;
+      for (let j = 0; j < m; j++) {
+        const v = c.nu[r * m + j] * dir;
+        if (v < 0 && c.group[j] !== g) limit = Math.min(limit, n[j] / -v);
+      }
+      if (!(limit > 0) || !Number.isFinite(limit)) continue;
+      const eps = KICK_FRACTION * limit * dir;
+      for (let j = 0; j < m; j++) {
+        const v = c.nu[r * m + j];
+        if (v === 0) continue;
+        const after = n[j] + v * eps;
+        n[j] = after > 0 ? after : n[j] * POSITIVE_FLOOR;
+      }
+      xi[r] += eps;
+      moved = true;
+    }
+  }
+  return moved;
+}
+
+/** Reduced directions for the held set: a basis of {z : (ν z)_j = 0 for every held j}. */
+export function buildDirections(c: Compact, held: Uint8Array): Directions {
+  const { m, rho } = c;
+  const rows: number[] = [];
+  for (let j = 0; j < m; j++) if (held[j] === HELD) rows.push(j);
+  if (rows.length === 0) {
+    const z = new Float64Array(rho * rho);
+    for (let k = 0; k < rho; k++) z[k * rho + k] = 1;
+    return { k: rho, s: c.nu, kappa: c.lnK, z };
+  }
+  const a = new Float64Array(rows.length * rho);
+  for (let w = 0; w < rows.length; w++) for (let k = 0; k < rho; k++) a[w * rho + k] = c.nu[k * m + rows[w]];
+  const { count, basis } = nullSpaceBasis(reducedRowEchelon(a, rows.length, rho, RANK_TOLERANCE), rho);
+  const s = new Float64Array(count * m);
+  const kappa = new Float64Array(count);
+  for (let d = 0; d < count; d++) {
+    let kap = 0;
+    for (let k = 0; k < rho; k++) {
+      const zk = basis[d * rho + k];
+      if (zk === 0) continue;
+      kap += zk * c.lnK[k];
+      for (let j = 0; j < m; j++) s[d * m + j] += zk * c.nu[k * m + j];
+    }
+    kappa[d] = kap;
+    for (let j = 0; j < m; j++) if (held[j] !== FREE) s[d * m + j] = 0;
+  }
+  return { k: count, s, kappa, z: basis };
+}
+
+/**
+ * Rewrites the directions in place into a basis adapted to the current amounts (Newton's
+ * step does not depend on the basis, its rounding does): Gauss–Jordan elimination whose
+ * pivot in each step is the least abundant mixture species among the columns with an
+ * entry of at least BASIS_PIVOT_RATIO times the largest remaining one. Each trace species
+ * then appears in one direction only, so its 1/n sits on the Hessian diagonal instead of
+ * swamping the curvature of combinations that do not involve it.
+ */
+function adaptBasis(c: Compact, n: Float64Array, s: Float64Array, kappa: Float64Array, z: Float64Array, k: number, used: Uint8Array): void {
+  const { m, rho } = c;
+  used.fill(0);
+  for (let step = 0; step < k; step++) {
+    let largest = 0;
+    for (let a = step; a < k; a++) for (let j = 0; j < m; j++) largest = Math.max(largest, Math.abs(s[a * m + j]));
+    if (!(largest > 0)) return;
+    let col = -1;
+    let row = -1;
+    let best = Infinity;
+    for (let j = 0; j < m; j++) {
+      if (used[j]) continue;
+      let r = -1;
+      let big = 0;
+      for (let a = step; a < k; a++) {
+        const v = Math.abs(s[a * m + j]);
+        if (v > big) {
+          big = v;
+          r = a;
+        }
+      }
+      if (big < BASIS_PIVOT_RATIO * largest) continue;
+      const weight = c.mixture[j] ? n[j] : Infinity;
+      if (col < 0 || weight < best) {
+        best = weight;
+        col = j;
+        row = r;
+      }
+    }
+    if (col < 0) return;
+    used[col] = 1;
+    if (row !== step) {
+      swapRows(s, m, row, step);
+      swapRows(z, rho, row, step);
+      const t = kappa[row];
+      kappa[row] = kappa[step];
+      kappa[step] = t;
+    }
+    const inv = 1 / s[step * m + col];
+    for (let j = 0; j < m; j++) s[step * m + j] *= inv;
+    s[step * m + col] = 1;
+    for (let r = 0; r < rho; r++) z[step * rho + r] *= inv;
+    kappa[step] *= inv;
+    for (let a = 0; a < k; a++) {
+      if (a === step) continue;
+      const f = s[a * m + col];
+      if (f === 0) continue;
+      for (let j = 0; j < m; j++) s[a * m + j] -= f * s[step * m + j];
+      s[a * m + col] = 0;
+      for (let r = 0; r < rho; r++) z[a * rho + r] -= f * z[step * rho + r];
+      kappa[a] -= f * kappa[step];
+    }
+  }
+}
+
+/** Whether some trace mixture species (below TRACE_FRACTION of the largest amount) appears in more than one direction. */
+function needsAdapting(c: Compact, n: Float64Array, s: Float64Array, k: number): boolean {
+  const { m } = c;
+  let largest = 0;
+  for (let j = 0; j < m; j++) largest = Math.max(largest, n[j]);
+  const trace = TRACE_FRACTION * largest;
+  for (let j = 0; j < m; j++) {
+    if (!c.mixture[j] || n[j] >= trace) continue;
+    let count = 0;
+    for (let a = 0; a < k; a++) if (s[a * m + j] !== 0 && ++count > 1) return true;
+  }
+  return false;
+}
+
+function swapRows(a: Float64Array, width: number, x: number, y: number): void {
+  for (let j = 0; j < width; j++) {
+    const t = a[x * width + j];
+    a[x * width + j] = a[y * width + j];
+    a[y * width + j] = t;
+  }
+}
+
+/** Rank of the constraint rows of the held species plus `extra` (or -1 for none). */
+function heldRank(c: Compact, held: Uint8Array, extra: number): { rank: number; count: number } {
+  const rows: number[] = [];
+  for (let j = 0; j < c.m; j++) if (held[j] === HELD) rows.push(j);
+  if (extra >= 0) rows.push(extra);
+  const a = new Float64Array(rows.length * c.rho);
+  for (let w = 0; w < rows.length; w++) for (let k = 0; k < c.rho; k++) a[w * c.rho + k] = c.nu[k * c.m + rows[w]];
+  return { rank: reducedRowEchelon(a, rows.length, c.rho, RANK_TOLERANCE).rank, count: rows.length };
+}
+
+/** Holds species j at zero: as an independent constraint, or as implied by the others. */
+export function holdAtZero(c: Compact, held: Uint8Array, j: number): void {
+  hold(c, held, j);
+}
+
+/** Releases held species j, turning implied zeros that became independent into constraints. */
+export function release(c: Compact, held: Uint8Array, j: number): void {
+  held[j] = FREE;
+  promoteImplied(c, held);
+}
+
+function hold(c: Compact, held: Uint8Array, j: number): void {
+  const { rank, count } = heldRank(c, held, j);
+  held[j] = rank === count ? HELD : IMPLIED;
+}
+
+/** After releasing a constraint, implied zeros that became independent turn into constraints. */
+function promoteImplied(c: Compact, held: Uint8Array): void {
+  for (let j = 0; j < c.m; j++) {
+    if (held[j] !== IMPLIED) continue;
+    held[j] = FREE;
+    hold(c, held, j);
+  }
+}
+
+/** The last workspace, reused by the next solve of the same size (solves are not re-entrant). */
+let pooled: Workspace | undefined;
+
+function workspaceFor(c: Compact): Workspace {
+  if (!pooled || pooled.m !== c.m || pooled.rho !== c.rho || pooled.mixtures !== c.mixtureIndex.length) pooled = new Workspace(c);
+  return pooled;
+}
+
+/** Scratch arrays of one solve. */
+class Workspace {
+  readonly m: number;
+  readonly rho: number;
+  readonly mixtures: number;
+  readonly totals = new Float64Array(2);
+  readonly trialTotals = new Float64Array(2);
+  readonly logA: Float64Array;
+  readonly trialLogA: Float64Array;
+  readonly trial: Float64Array;
+  readonly d: Float64Array;
+  readonly dxi: Float64Array;
+  readonly g: Float64Array;
+  readonly gz: Float64Array;
+  readonly pz: Float64Array;
+  readonly h: Float64Array;
+  readonly scale: Float64Array;
+  readonly groupSums: Float64Array;
+  readonly s: Float64Array;
+  readonly kappa: Float64Array;
+  readonly z: Float64Array;
+  readonly used: Uint8Array;
+  /** Directions weighted by 1/√n on the mixture species (k × mixture count) and the weights. */
+  readonly weighted: Float64Array;
+  readonly rootWeight: Float64Array;
+  /** φ''(t) at the last point evaluated by `slope`. */
+  trialCurvature = 0;
+  constructor(c: Compact) {
+    this.m = c.m;
+    this.rho = c.rho;
+    this.mixtures = c.mixtureIndex.length;
+    this.logA = new Float64Array(c.m);
+    this.trialLogA = new Float64Array(c.m);
+    this.trial = new Float64Array(c.m);
+    this.d = new Float64Array(c.m);
+    this.dxi = new Float64Array(c.rho);
+    this.g = new Float64Array(c.rho);
+    this.gz = new Float64Array(c.rho);
+    this.pz = new Float64Array(c.rho);
+    this.h = new Float64Array(c.rho * c.rho);
+    this.scale = new Float64Array(c.rho);
+    this.groupSums = new Float64Array(2 * c.rho);
+    this.s = new Float64Array(c.rho * c.m);
+    this.kappa = new Float64Array(c.rho);
+    this.z = new Float64Array(c.rho * c.rho);
+    this.used = new Uint8Array(c.m);
+    this.weighted = new Float64Array(c.rho * c.mixtureIndex.length);
+    this.rootWeight = new Float64Array(c.mixtureIndex.length);
+  }
+}
+
+/**
+ * Minimises G(ξ)/RT over the extents, n = n0 + ν·ξ >= 0. Gradient: ln Q_r − ln K_r.
+ * Hessian: νᵀ·D·ν with D = diag(1/n_i) minus 1/N_phase on each mole-fraction phase
+ * block (ideal mixing). Method choices:
+ * - the amounts n are the state (updated by n += t·ν·Δξ, not recomputed as n0 + ν·ξ), so
+ *   a shrinking species keeps relative precision down to AMOUNT_FLOOR;
+ * - the directions are re-based every time a trace species would appear in more than one
+ *   of them (adaptBasis: Gauss–Jordan with the least abundant species as pivots) — Newton's
+ *   step is basis-independent, but this keeps each 1/n of a trace species on the Hessian
+ *   diagonal instead of cancelling the curvature of the other directions;
+ * - the reduced Hessian is Jacobi-scaled and factored by a modified Cholesky, so directions
+ *   with no curvature (a solid-only exchange, a pure gas at constant pressure) take a long
+ *   step that stops where a phase runs out;
+ * - the step length comes from the directional derivative φ'(t) (evaluated without the
+ *   cancellation that G itself would suffer): full step, expansion while φ' stays steeply
+ *   negative (a species that must grow by orders of magnitude), else a safeguarded Newton
+ *   root find of φ'; limited by the first pure phase to run out (added to the active set)
+ *   and strictly inside the bound of the mixture species;
+ * - pure phases held at zero (the active set) restrict the step to directions that keep
+ *   them at zero; at a subspace optimum, a held phase with a negative Lagrange multiplier
+ *   (forming it lowers G) is released.
+ * Stops when the Newton step changes no species by more than STEP_TOLERANCE relative to
+ * max(n, RESOLUTION·total) (trace species are left to the polish), or the decrement is
+ * negligible. With `strict` (after a failed polish: a species or phase at trace level must
+ * grow to a real amount, which gains little G at first) only the step test counts.
+ */
+export function extentNewton(c: Compact, st: ExtentState, released = -1, strict = false): StageOutcome & { directions: Directions } {
+  const { m, rho } = c;
+  const ws = workspaceFor(c);
+  const { n, xi, held } = st;
+  for (let j = 0; j < m; j++) if (!c.mixture[j] && n[j] === 0 && held[j] === FREE && j !== released) hold(c, held, j);
+  let dirs = buildDirections(c, held);
+  let locked = -1; // a phase re-held right after its release is not released again until the set changes
+  let lastReleased = released;
+  let basisFor: Directions | undefined; // the directions the working basis (ws.s, ws.kappa, ws.z) was built from
+  for (;;) {
+    st.iterations++;
+    if (st.iterations > MAX_ITERATIONS) return { ok: false, message: 'the Newton iteration did not converge', directions: dirs };
+    groupTotals(c, n, ws.totals);
+    logActivities(c, n, ws.totals, ws.logA);
+    const k = dirs.k;
+    const s = ws.s;
+    const kappa = ws.kappa;
+    const zb = ws.z;
+    if (basisFor !== dirs) {
+      s.set(dirs.s.subarray(0, k * m));
+      kappa.set(dirs.kappa.subarray(0, k));
+      zb.set(dirs.z.subarray(0, k * rho));
+      basisFor = dirs;
+      adaptBasis(c, n, s, kappa, zb, k, ws.used);
+    } else if (needsAdapting(c, n, s, k)) adaptBasis(c, n, s, kappa, zb, k, ws.used);
+    const L = ws.logA;
+    for (let a = 0; a < k; a++) {
+      let sum = -kappa[a];
+      for (let j = 0; j < m; j++) {
+        const v = s[a * m + j];
+        if (v !== 0) sum += v * L[j];
+      }
+      ws.gz[a] = sum;
+    }
+    // Reduced Hessian (lower triangle) = Σ_j s_aj s_bj / n_j over mixture species, minus the
+    // phase terms; formed from rows weighted by 1/√n_j (dense, branch-free).
+    const h = ws.h;
+    const gs = ws.groupSums;
+    const mix = c.mixtureIndex;
+    const mm = mix.length;
+    const sw = ws.weighted;
+    for (let jj = 0; jj < mm; jj++) ws.rootWeight[jj] = 1 / Math.sqrt(n[mix[jj]]);
+    for (let a = 0; a < k; a++) {
+      gs[2 * a] = 0;
+      gs[2 * a + 1] = 0;
+      let sq = 0;
+      for (let j = 0; j < m; j++) {
+        const v = s[a * m + j];
+        if (v === 0) continue;
+        sq += v * v;
+        const g = c.group[j];
+        if (g >= 0) gs[2 * a + g] += v;
+      }
+      let diag = 0;
+      for (let jj = 0; jj < mm; jj++) {
+        const v = s[a * m + mix[jj]] * ws.rootWeight[jj];
+        sw[a * mm + jj] = v;
+        diag += v * v;
+      }
+      ws.scale[a] = diag > 0 ? 1 / Math.sqrt(diag) : Math.sqrt(c.total / Math.max(sq, Number.MIN_VALUE));
+    }
+    const t0 = ws.totals[0];
+    const t1 = ws.totals[1];
+    for (let a = 0; a < k; a++) {
+      const ga0 = t0 > 0 ? gs[2 * a] / t0 : 0;
+      const ga1 = t1 > 0 ? gs[2 * a + 1] / t1 : 0;
+      for (let b = 0; b <= a; b++) {
+        let sum = 0;
+        for (let jj = 0; jj < mm; jj++) sum += sw[a * mm + jj] * sw[b * mm + jj];
+        h[a * k + b] = sum - ga0 * gs[2 * b] - ga1 * gs[2 * b + 1];
+      }
+    }
+    for (let a = 0; a < k; a++) ws.pz[a] = -ws.gz[a];
+    if (k > 0) modifiedCholeskySolve(h, k, ws.scale, ws.pz, MIN_PIVOT);
+    let decrement = 0;
+    for (let a = 0; a < k; a++) decrement -= ws.gz[a] * ws.pz[a];
+    if (!Number.isFinite(decrement)) return { ok: false, message: 'the Newton step is not finite', directions: dirs };
+
+    const d = ws.d;
+    d.fill(0);
+    for (let a = 0; a < k; a++) {
+      const pa = ws.pz[a];
+      if (pa !== 0) for (let j = 0; j < m; j++) d[j] += pa * s[a * m + j];
+    }
+    let largestStep = 0;
+    const floor = RESOLUTION * c.total;
+    for (let j = 0; j < m; j++) {
+      const dj = d[j];
+      if (dj === 0) continue;
+      let size = 0;
+      for (let a = 0; a < k; a++) size += Math.abs(ws.pz[a] * s[a * m + j]);
+      if (Math.abs(dj) <= DIRECTION_NOISE * size) continue;
+      largestStep = Math.max(largestStep, dj > 0 ? dj / n[j] : -dj / Math.max(n[j], floor));
+    }
+   
+    if (largestStep <= STEP_TOLERANCE || (!strict && !(decrement > DECREMENT_TOLERANCE * c.total))) {
+      const release = negativeMultiplier(c, held, ws.logA, ws.g, locked);
+      if (release < 0) return { ok: true, directions: dirs };
+      held[release] = FREE;
+      promoteImplied(c, held);
+      lastReleased = release;
+      dirs = buildDirections(c, held);
+      continue;
+    }
+
+    ws.dxi.fill(0);
+    for (let a = 0; a < k; a++) {
+      const pa = ws.pz[a];
+      if (pa !== 0) for (let r = 0; r < rho; r++) ws.dxi[r] += pa * zb[a * rho + r];
+    }
+    let pk = 0;
+    for (let a = 0; a < k; a++) pk += ws.pz[a] * kappa[a];
+
+    // Bounds of the step: the first pure phase to run out, and the mixture boundary.
+    let tPure = Infinity;
+    let blocking = -1;
+    let tMix = Infinity;
+    for (let j = 0; j < m; j++) {
+      if (d[j] >= 0 || held[j] !== FREE) continue;
+      const t = n[j] / -d[j];
+      if (c.mixture[j]) {
+        if (n[j] > CLAMPABLE_AMOUNT * c.total) tMix = Math.min(tMix, t);
+      }
+      else if (t < tPure) {
+        tPure = t;
+        blocking = j;
+      }
+    }
+    if (blocking >= 0 && tPure === 0) {
+      // A phase at zero that this direction would make negative: hold it and recompute.
+      hold(c, held, blocking);
+      if (blocking === lastReleased) locked = blocking;
+      dirs = buildDirections(c, held);
+      continue;
+    }
+    const t = lineSearch(c, ws, n, d, pk, decrement, tPure, tMix);
+    if (!(t > 0)) {
+      if (!strict && decrement <= STALL_DECREMENT_TOLERANCE * c.total) return { ok: true, directions: dirs };
+      return { ok: false, message: 'the line search could not make progress', directions: dirs };
+    }
+    let moved = false;
+    for (let j = 0; j < m; j++) {
+      const dj = d[j];
+      if (dj === 0) continue;
+      const before = n[j];
+      let after = before + t * dj;
+      if (Math.abs(after - before) > STALL_CHANGE * Math.max(before, floor)) moved = true;
+      if (c.mixture[j]) {
+        if (dj < 0 && before <= CLAMPABLE_AMOUNT * c.total) after = Math.max(after, AMOUNT_FLOOR * c.total);
+        else if (!(after > 0)) after = before * POSITIVE_FLOOR;
+      } else if (after <= 0 || (j === blocking && t === tPure)) after = 0;
+      n[j] = after;
+    }
+    for (let r = 0; r < rho; r++) xi[r] += t * ws.dxi[r];
+    let changed = false;
+    for (let j = 0; j < m; j++) {
+      if (!c.mixture[j] && n[j] === 0 && held[j] === FREE) {
+        hold(c, held, j);
+        changed = true;
+      }
+    }
+    if (changed) {
+      locked = -1;
+      lastReleased = -1;
+      dirs = buildDirections(c, held);
+    }
+    if (!moved && !changed) {
+      // Rounding noise: the step no longer changes anything resolvable. Close enough for the
+      // polish if the Newton step was small; otherwise give up.
+      if (largestStep <= STALL_STEP_TOLERANCE || (!strict && decrement <= STALL_DECREMENT_TOLERANCE * c.total)) return { ok: true, directions: dirs };
+      return { ok: false, message: 'the Newton iteration stalled', directions: dirs };
+    }
+  }
+}
+
+/**
+ * Lagrange multipliers of the held phases at a subspace optimum: g = Aᵀλ, with A the
+ * rows (ν·ξ)_j of the held species (least squares through AAᵀ). λ_j < 0 means forming
+ * phase j lowers G. Returns the species with the most negative multiplier (not the
+ * locked one), or -1 when none is below −MULTIPLIER_TOLERANCE.
+ */
+export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array, g: Float64Array, locked: number): number {
+  const { m, rho } = c;
+  const rows: number[] = [];
+  for (let j = 0; j < m; j++) if (held[j] === HELD) rows.push(j);
+  const w = rows.length;
+  if (w === 0) return -1;
+  for (let r = 0; r < rho; r++) {
+    let sum = -c.lnK[r];
+    for (let j = 0; j < m; j++) {
+      const v = c.nu[r * m + j];
+      if (v !== 0) sum += v * L[j];
+    }
+    g[r] = sum;
+  }
+  const aat = new Float64Array(w * w);
+  const rhs = new Float64Array(w);
+  for (let x = 0; x < w; x++) {
+    let sum = 0;
+    for (let r = 0; r < rho; r++) sum += c.nu[r * m + rows[x]] * g[r];
+    rhs[x] = sum;
+    for (let y = 0; y < w; y++) {
+      let dot = 0;
+      for (let r = 0; r < rho; r++) dot += c.nu[r * m + rows[x]] * c.nu[r * m + rows[y]];
+      aat[x * w + y] = dot;
+    }
+  }
+  const perm = new Int32Array(w);
+  if (!luFactor(aat, w, perm)) return -1;
+  luSolve(aat, w, perm, rhs);
+  let worst = -1;
+  let min = -MULTIPLIER_TOLERANCE;
+  for (let x = 0; x < w; x++) {
+    if (rows[x] === locked) continue;
+    if (rhs[x] < min) {
+      min = rhs[x];
+      worst = rows[x];
+    }
+  }
+  return worst;
+}
+
+/**
+ * Step length along species direction d: φ(t) = G(n + t·d) is convex with
+ * φ'(t) = Σ d_j ln a_j(n + t·d) − Σ p·κ and φ'' = dᵀ·D·d. Accepts t where
+ * |φ'(t)| <= LINE_SEARCH_SLOPE·|φ'(0)|, or the step to the first pure phase running out if
+ * φ' is still negative there. Starts at the full Newton step; expands while φ' is still
+ * steeply negative (a trace species whose Newton step underestimates its growth);
+ * otherwise a safeguarded Newton/bisection on φ' (→ +∞ at the mixture boundary, where a
+ * species would reach zero) finds t.
+ */
+function lineSearch(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array, pk: number, decrement: number, tPure: number, tMix: number): number {
+  const target = LINE_SEARCH_SLOPE * decrement;
+  let lo = 0;
+  let hi = Math.min(tPure, tMix);
+  let t = Math.min(1, tPure);
+  if (t >= tMix) t = 0.5 * tMix;
+  let value = slope(c, ws, n, d, pk, t);
+  // Still steeply downhill: expand (a trace species that must grow by orders of magnitude).
+  for (let e = 0; e < MAX_EXPANSIONS && value < -target && t < hi; e++) {
+    lo = t;
+    if (t === tPure) return t;
+    let next = EXPANSION_FACTOR * t;
+    if (next >= tPure) next = tPure;
+    if (next >= tMix) next = t + 0.5 * (tMix - t);
+    if (!(next > t)) break;
+    t = next;
+    value = slope(c, ws, n, d, pk, t);
+  }
+  if (value <= target && (value >= -target || t === tPure)) return t;
+  if (!(value > 0) && !Number.isNaN(value)) lo = t;
+  else hi = t;
+  // Safeguarded Newton/bisection for |φ'(t)| <= target inside (lo, hi).
+  t = 0.5 * (lo + hi);
+  value = slope(c, ws, n, d, pk, t);
+  for (let it = 0; it < LINE_SEARCH_ITERATIONS; it++) {
+    if (Number.isNaN(value) || value > 0) hi = t;
+    else lo = t;
+    if (!Number.isNaN(value) && Math.abs(value) <= target) return t;
+    let next = Number.NaN;
+    if (!Number.isNaN(value)) next = t - value / ws.trialCurvature;
+    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+    if (hi - lo <= 1e-15 * hi) break;
+    t = next;
+    value = slope(c, ws, n, d, pk, t);
+  }
+  return lo;
+}
+
+/** φ'(t) at n + t·d (NaN if a mixture amount would fall below AMOUNT_FLOOR of the total, unless it is clamped there); leaves φ''(t) in ws.trialCurvature. */
+function slope(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array, pk: number, t: number): number {
+  const m = c.m;
+  const x = ws.trial;
+  const floor = AMOUNT_FLOOR * c.total;
+  const clampable = CLAMPABLE_AMOUNT * c.total;
+  for (let j = 0; j < m; j++) {
+    let v = n[j] + t * d[j];
+    if (c.mixture[j] && d[j] < 0 && !(v >= floor)) {
+      if (n[j] <= clampable) v = floor;
+      else return Number.NaN;
+    }
+    x[j] = v;
+  }
+  groupTotals(c, x, ws.trialTotals);
+  logActivities(c, x, ws.trialTotals, ws.trialLogA);
+  let value = -pk;
+  let curvature = 0;
+  let dg0 = 0;
+  let dg1 = 0;
+  for (let j = 0; j < m; j++) {
+    const dj = d[j];
+    if (dj === 0) continue;
+    value += dj * ws.trialLogA[j];
+    if (!c.mixture[j]) continue;
+    curvature += (dj * dj) / x[j];
+    if (c.group[j] === 0) dg0 += dj;
+    else if (c.group[j] === 1) dg1 += dj;
+  }
+  if (ws.trialTotals[0] > 0) curvature -= (dg0 * dg0) / ws.trialTotals[0];
+  if (ws.trialTotals[1] > 0) curvature -= (dg1 * dg1) / ws.trialTotals[1];
+  ws.trialCurvature = curvature;
+  return value;
+}

@@ -1,0 +1,361 @@
+// The general path, stage 2: Newton's method in log-amount variables from the
+// extent solution, so that trace species come out with full relative
+// precision and conservation holds to rounding.
+import { groupTotals, type Compact } from './compact';
+import { dot2Difference, luFactor, luSolve, nullSpaceBasis, reducedRowEchelon, type RowEchelon } from './linalg';
+import { buildDirections, FREE, HELD, RANK_TOLERANCE, type Directions, type ExtentState, type StageOutcome } from './newton';
+
+/** Iteration cap of the polish. */
+export const POLISH_MAX_ITERATIONS = 40;
+/** Converged when every ln n moves by less than this (relative error of n) and every pure amount by this fraction. */
+export const POLISH_STEP_TOLERANCE = 1e-12;
+/**
+ * A pure phase's polish step is measured relative to its own amount, down to this fraction
+ * of the total (about what compensated conservation residuals resolve).
+ */
+const PURE_AMOUNT_FLOOR = 1e-28;
+/**
+ * A conservation row is scaled by its magnitude, but never by less than this fraction of the
+ * total: conservation is required relative to the total amount, and a law among trace
+ * species only must not look violated by a residual of 1e-40 mol.
+ */
+const ROW_SCALE_FLOOR = 1e-25;
+/** Pivot threshold when rewriting the conservation laws (fraction of the largest entry). */
+const LAW_PIVOT_RATIO = 0.01;
+/** Entries of a rewritten conservation law below this fraction of its largest are rounding residue. */
+const LAW_CLEANUP = 1e-12;
+/** Residuals (ln units, or conservation relative to its row scale) below this count as rounding noise in the line search. */
+const POLISH_NOISE = 1e-13;
+/** Sufficient decrease of Σ residual² for a step of length t: a factor (1 − ARMIJO·t) (Armijo rule; the Newton direction halves it to first order). */
+const ARMIJO = 1e-4;
+/** ln n may not exceed this in a trial step (exp would overflow). */
+const MAX_LOG_AMOUNT = 700;
+/** ln n below this would make the amount subnormal (precision lost). */
+const MIN_LOG_AMOUNT = Math.log(2.2250738585072014e-308);
+/** Halvings of a polish step before giving up on a decrease of the residual. */
+const MAX_HALVINGS = 30;
+
+/**
+ * Unknowns: ln n for each free mixture species, n for each free pure phase (phases held
+ * at zero are fixed). Equations: for each direction z of the reduced space (a basis of
+ * the reactions that keeps held phases at zero), Σ (ν z)_i ln a_i = z·ln K; and the
+ * network's conservation laws c·n = c·n0 (held species contributing zero), an independent
+ * subset of them when some zeros are implied by others. This is the brief's "conservation
+ * of the reaction invariants", referenced to n0 rather than to the extent solution: the
+ * same equations in exact arithmetic, without the extent solution's accumulated rounding.
+ * Conservation residuals are formed in twice the working precision (Dot2), which acts as
+ * iterative refinement: a small remainder fixed by a conservation difference (an excess
+ * reagent, a nearly used-up solid) keeps its relative precision. ln a comes straight
+ * from ln n, so trace amounts never underflow in the equations. The Jacobian (mass-action
+ * rows 1 − n_j/N_phase on the diagonal blocks, conservation rows c_j·n_j, scaled by their
+ * magnitude) is solved by LU with partial pivoting; steps are halved until Σ residual²
+ * decreases enough (Armijo). A free pure phase that comes out negative is held at zero
+ * and the polish restarts.
+ */
+export function polish(c: Compact, st: ExtentState, start: Directions): StageOutcome & { iterations: number } {
+  let dirs = start;
+  let iterations = 0;
+  const heldBefore = Uint8Array.from(st.held);
+  for (let round = 0; round <= c.m; round++) {
+    const outcome = polishOnce(c, st, dirs);
+    iterations += outcome.iterations;
+    if (outcome.negative < 0) {
+      if (outcome.ok) return { ok: true, iterations };
+      st.held.set(heldBefore);
+      return { ok: false, message: outcome.message, iterations, underflow: outcome.underflow };
+    }
+    st.held[outcome.negative] = HELD;
+    dirs = buildDirections(c, st.held);
+  }
+  st.held.set(heldBefore);
+  return { ok: false, message: 'the polish did not settle which phases are present', iterations };
+}
+
+interface PolishOnce {
+  readonly ok: boolean;
+  readonly message?: string;
+  readonly underflow?: number;
+  readonly iterations: number;
+  /** A free pure phase that came out negative (or -1). */
+  readonly negative: number;
+}
+
+function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
+  const { m } = c;
+  const n = st.n;
+  const held = st.held;
+  const unknown: number[] = [];
+  for (let j = 0; j < m; j++) if (held[j] === FREE) unknown.push(j);
+  const q = unknown.length;
+  const k = dirs.k;
+  const fail = (message: string, iterations: number): PolishOnce => ({ ok: false, message, iterations, negative: -1 });
+
+  const laws = conservationRows(c, held, n);
+  const count = laws.count;
+  if (count + k !== q) return fail('the conservation laws and the reduced reactions do not determine the present species', 0);
+  const invariants = laws.rows;
+  const rowScale = new Float64Array(count);
+  for (let l = 0; l < count; l++) {
+    let sc = 0;
+    for (let j = 0; j < m; j++) sc += Math.abs(invariants[l * m + j]) * Math.max(n[j], c.n0[j]);
+    rowScale[l] = Math.max(sc, ROW_SCALE_FLOOR * c.total);
+  }
+  const x = new Float64Array(q);
+  for (let u = 0; u < q; u++) {
+    const j = unknown[u];
+    x[u] = c.mixture[j] ? Math.log(n[j]) : n[j];
+    if (c.mixture[j] && !Number.isFinite(x[u])) return fail('a mixture species has no positive amount to start the polish from', 0);
+  }
+  const amounts = Float64Array.from(n);
+  for (let j = 0; j < m; j++) if (held[j] !== FREE) amounts[j] = 0;
+  const totals = new Float64Array(2);
+  const logA = new Float64Array(m);
+  for (let j = 0; j < m; j++) if (!c.mixture[j]) logA[j] = c.offset[j];
+  const residual = new Float64Array(q);
+  const jac = new Float64Array(q * q);
+  const perm = new Int32Array(q);
+  const step = new Float64Array(q);
+  const trialX = new Float64Array(q);
+  const groupSums = new Float64Array(2 * k);
+  for (let a = 0; a < k; a++) {
+    for (let j = 0; j < m; j++) {
+      const g = c.group[j];
+      if (g >= 0) groupSums[2 * a + g] += dirs.s[a * m + j];
+    }
+  }
+
+  /** Residuals at `xs` into `residual`; returns Σ residual² (NaN if not finite). */
+  const evaluate = (xs: Float64Array): number => {
+    for (let u = 0; u < q; u++) {
+      const j = unknown[u];
+      amounts[j] = c.mixture[j] ? Math.exp(xs[u]) : xs[u];
+    }
+    groupTotals(c, amounts, totals);
+    // ln a from ln n directly, so an amount too small for a double still has an exact ln a.
+    const lg0 = Math.log(totals[0]);
+    const lg1 = Math.log(totals[1]);
+    for (let u = 0; u < q; u++) {
+      const j = unknown[u];
+      if (!c.mixture[j]) continue;
+      const g = c.group[j];
+      logA[j] = xs[u] + c.offset[j] - (g === 0 ? lg0 : g === 1 ? lg1 : 0);
+    }
+    let worst = 0;
+    for (let a = 0; a < k; a++) {
+      let sum = -dirs.kappa[a];
+      for (let j = 0; j < m; j++) {
+        const v = dirs.s[a * m + j];
+        if (v !== 0) sum += v * logA[j];
+      }
+      residual[a] = sum;
+      worst += sum * sum;
+    }
+    for (let l = 0; l < count; l++) {
+      const r = dot2Difference(invariants, l * m, amounts, c.n0, m) / rowScale[l];
+      residual[k + l] = r;
+      worst += r * r;
+    }
+    return Number.isFinite(worst) ? worst : Number.NaN;
+  };
+
+  let merit = evaluate(x);
+  if (Number.isNaN(merit)) return fail('the polish started from a non-finite point', 0);
+  let iterations = 0;
+  let converged = false;
+  while (iterations < POLISH_MAX_ITERATIONS) {
+    iterations++;
+    // Jacobian at the current point (amounts/totals hold its values).
+    for (let a = 0; a < k; a++) {
+      for (let u = 0; u < q; u++) {
+        const j = unknown[u];
+        let v = 0;
+        if (c.mixture[j]) {
+          v = dirs.s[a * m + j];
+          const g = c.group[j];
+          if (g >= 0) v -= (groupSums[2 * a + g] * amounts[j]) / totals[g];
+        }
+        jac[a * q + u] = v;
+      }
+    }
+    for (let l = 0; l < count; l++) {
+      for (let u = 0; u < q; u++) {
+        const j = unknown[u];
+        const cl = invariants[l * m + j];
+        jac[(k + l) * q + u] = c.mixture[j] ? (cl * amounts[j]) / rowScale[l] : cl / rowScale[l];
+      }
+    }
+    for (let i = 0; i < q; i++) step[i] = -residual[i];
+    if (!luFactor(jac, q, perm)) return fail('the polish Jacobian is singular', iterations);
+    luSolve(jac, q, perm, step);
+    let t = 1;
+    for (let u = 0; u < q; u++) {
+      if (!Number.isFinite(step[u])) return fail('the polish step is not finite', iterations);
+      if (c.mixture[unknown[u]] && x[u] + step[u] > MAX_LOG_AMOUNT) t = Math.min(t, (MAX_LOG_AMOUNT - x[u]) / step[u]);
+    }
+    let accepted = false;
+    let trialMerit = merit;
+    for (let halving = 0; halving <= MAX_HALVINGS; halving++) {
+      for (let u = 0; u < q; u++) trialX[u] = x[u] + t * step[u];
+      trialMerit = evaluate(trialX);
+      if (!Number.isNaN(trialMerit) && (trialMerit <= (1 - ARMIJO * t) * merit || trialMerit <= POLISH_NOISE * POLISH_NOISE * q)) {
+        accepted = true;
+        break;
+      }
+      t *= 0.5;
+    }
+    if (!accepted) {
+      evaluate(x);
+      if (merit <= POLISH_NOISE * POLISH_NOISE * q) converged = true;
+      break;
+    }
+    let largest = 0;
+    for (let u = 0; u < q; u++) {
+      const j = unknown[u];
+      const change = Math.abs(t * step[u]);
+      largest = Math.max(largest, c.mixture[j] ? change : change / Math.max(Math.abs(trialX[u]), c.total * PURE_AMOUNT_FLOOR));
+      x[u] = trialX[u];
+    }
+    merit = trialMerit;
+    if (t === 1 && largest <= POLISH_STEP_TOLERANCE) {
+      converged = true;
+      break;
+    }
+  }
+  if (!converged) return fail('the log-amount polish did not converge', iterations);
+  evaluate(x);
+  for (let u = 0; u < q; u++) {
+    const j = unknown[u];
+    if (c.mixture[j] && x[u] < MIN_LOG_AMOUNT && !(c.group[j] >= 0 && c.phantom[c.group[j]] > 0)) {
+      return { ok: false, message: 'an equilibrium amount is below the smallest normal double (underflow)', iterations, negative: -1, underflow: j };
+    }
+  }
+  // Move the extents by the polish's change of the amounts, then keep the new amounts.
+  let negative = -1;
+  for (let j = 0; j < m; j++) {
+    if (held[j] === FREE && !c.mixture[j] && amounts[j] < 0) negative = negative < 0 || amounts[j] < amounts[negative] ? j : negative;
+  }
+  if (negative >= 0) return { ok: false, iterations, negative };
+  updateExtents(c, st, amounts);
+  for (let j = 0; j < m; j++) n[j] = held[j] === FREE ? amounts[j] : 0;
+  return { ok: true, iterations, negative: -1 };
+}
+
+/** Conservation laws of the basis reactions over the variable species (a null-space basis of ν), cached per compact problem. */
+export function conservationLaws(c: Compact): { readonly count: number; readonly basis: Float64Array } {
+  let laws = lawCache.get(c);
+  if (!laws) {
+    laws = nullSpaceBasis(stoichiometricEchelon(c), c.m);
+    lawCache.set(c, laws);
+  }
+  return laws;
+}
+
+const lawCache = new WeakMap<Compact, { readonly count: number; readonly basis: Float64Array }>();
+
+/** Reduced row echelon form of the basis stoichiometry ν (rho × m), computed once per compact problem. */
+function stoichiometricEchelon(c: Compact): RowEchelon {
+  let e = echelonCache.get(c);
+  if (!e) {
+    e = reducedRowEchelon(c.nu, c.rho, c.m, RANK_TOLERANCE);
+    echelonCache.set(c, e);
+  }
+  return e;
+}
+
+const echelonCache = new WeakMap<Compact, RowEchelon>();
+
+/**
+ * The conservation laws for the polish, rewritten by Gauss–Jordan elimination whose pivots
+ * are the most abundant free species (among columns with an entry of at least
+ * LAW_PIVOT_RATIO of the largest): each major species then appears in one law only, and a
+ * law whose pivot is a trace species involves trace species alone, so a small amount fixed
+ * by conservation is not disturbed by the rounding of the major ones. Entries below
+ * LAW_CLEANUP of their row's largest are rounding residue and set to zero. Laws that vanish
+ * on the free species (implied by held zeros) are dropped. Rows span all variable species
+ * (held ones included, for the right-hand sides c·n0).
+ */
+function conservationRows(c: Compact, held: Uint8Array, n: Float64Array): { count: number; rows: Float64Array } {
+  const { m } = c;
+  const all = conservationLaws(c);
+  const rows = Float64Array.from(all.basis);
+  const total = all.count;
+  const used = new Uint8Array(m);
+  let rank = 0;
+  for (; rank < total; rank++) {
+    let largest = 0;
+    for (let l = rank; l < total; l++) for (let j = 0; j < m; j++) if (held[j] === FREE) largest = Math.max(largest, Math.abs(rows[l * m + j]));
+    if (!(largest > RANK_TOLERANCE)) break;
+    let col = -1;
+    let row = -1;
+    for (let j = 0; j < m; j++) {
+      if (held[j] !== FREE || used[j]) continue;
+      let r = -1;
+      let big = 0;
+      for (let l = rank; l < total; l++) {
+        const v = Math.abs(rows[l * m + j]);
+        if (v > big) {
+          big = v;
+          r = l;
+        }
+      }
+      if (big < LAW_PIVOT_RATIO * largest) continue;
+      if (col < 0 || n[j] > n[col]) {
+        col = j;
+        row = r;
+      }
+    }
+    if (col < 0) break;
+    used[col] = 1;
+    if (row !== rank) {
+      for (let j = 0; j < m; j++) {
+        const t = rows[row * m + j];
+        rows[row * m + j] = rows[rank * m + j];
+        rows[rank * m + j] = t;
+      }
+    }
+    const inv = 1 / rows[rank * m + col];
+    for (let j = 0; j < m; j++) rows[rank * m + j] *= inv;
+    rows[rank * m + col] = 1;
+    for (let l = 0; l < total; l++) {
+      if (l === rank) continue;
+      const f = rows[l * m + col];
+      if (f === 0) continue;
+      for (let j = 0; j < m; j++) rows[l * m + j] -= f * rows[rank * m + j];
+      rows[l * m + col] = 0;
+    }
+  }
+  for (let l = 0; l < rank; l++) {
+    let big = 0;
+    for (let j = 0; j < m; j++) big = Math.max(big, Math.abs(rows[l * m + j]));
+    for (let j = 0; j < m; j++) if (Math.abs(rows[l * m + j]) < LAW_CLEANUP * big) rows[l * m + j] = 0;
+  }
+  return { count: rank, rows: rows.subarray(0, rank * m) };
+}
+
+/** ξ += Δξ with ν·Δξ = Δn on a set of pivot species (complete-pivoting echelon of ν) where ν is best conditioned. */
+function updateExtents(c: Compact, st: ExtentState, amounts: Float64Array): void {
+  const { m, rho } = c;
+  let cached = extentSystems.get(c);
+  if (cached === undefined) {
+    const e = stoichiometricEchelon(c);
+    if (e.rank !== rho) cached = null;
+    else {
+      const a = new Float64Array(rho * rho);
+      for (let i = 0; i < rho; i++) for (let r = 0; r < rho; r++) a[i * rho + r] = c.nu[r * m + e.pivotColumns[i]];
+      const perm = new Int32Array(rho);
+      cached = luFactor(a, rho, perm) ? { pivots: e.pivotColumns, lu: a, perm } : null;
+    }
+    extentSystems.set(c, cached);
+  }
+  if (cached === null) return;
+  const b = new Float64Array(rho);
+  for (let i = 0; i < rho; i++) {
+    const j = cached.pivots[i];
+    b[i] = amounts[j] - st.n[j];
+  }
+  luSolve(cached.lu, rho, cached.perm, b);
+  for (let r = 0; r < rho; r++) st.xi[r] += b[r];
+}
+
+/** Per compact problem: the pivot species and LU factors of ν on them (null if ν is rank deficient). */
+const extentSystems = new WeakMap<Compact, { readonly pivots: Int32Array; readonly lu: Float64Array; readonly perm: Int32Array } | null>();
