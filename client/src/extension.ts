@@ -16,6 +16,11 @@ export async function activate(context: ExtensionContext): Promise<void> {
   const clientOptions: LanguageClientOptions = {
     documentSelector: [{ language: 'eqnb' }],
     initializationOptions: { diagnosticsDelayMs: config.get<number>('diagnostics.delayMs', 250) },
+    middleware: {
+      // The `stillpoint.inlayHints.enabled` setting is read on every request, so it applies at once.
+      provideInlayHints: (document, range, token, next) =>
+        workspace.getConfiguration('stillpoint').get<boolean>('inlayHints.enabled', true) ? next(document, range, token) : [],
+    },
   };
   client = new LanguageClient('stillpoint', 'Stillpoint', serverOptions, clientOptions);
   context.subscriptions.push({ dispose: () => void client?.stop() });

@@ -136,10 +136,10 @@ describe('check', () => {
   });
 
   it('files and folders may be mixed; paths inside the working directory are shown relative to it', () => {
-    const r = run('check', 'examples/gas-phase-ammonia.eqnb', file('clean-folder'), '--json');
+    const r = run('check', 'examples/pilot-esterification.eqnb', file('clean-folder'), '--json');
     expect(process.cwd()).toBe(REPO_ROOT);
     expect(r.code).toBe(0);
-    expect((json(r) as { files: { file: string }[] }).files.map((f) => f.file)).toEqual(['examples/gas-phase-ammonia.eqnb', file('clean-folder', 'sub', 'e.eqnb')]);
+    expect((json(r) as { files: { file: string }[] }).files.map((f) => f.file)).toEqual(['examples/pilot-esterification.eqnb', file('clean-folder', 'sub', 'e.eqnb')]);
   });
 
   it('a missing path is a failure (exit 1) named on stderr, and the other paths are still checked', () => {

@@ -21,7 +21,7 @@ const NOTEBOOK = [
   'species water = H2O (l)',
   'dissolve: Cu(s) + HNO3(aq) -> Cu(NO3)2(aq) + NO(g) + water',
   'batch b1 at 25 °C',
-  '  Cu 1 mol',
+  '  Cu(s) 1 mol',
   '',
 ].join('\n');
 
@@ -95,6 +95,45 @@ describe('language server over stdio', () => {
     const symbols = await client.request<{ name: string }[]>('textDocument/documentSymbol', { textDocument: { uri: URI } });
     expect(symbols.map((s) => s.name)).toEqual(['water', 'dissolve', 'b1']);
 
+    expect(await client.shutdown()).toBe(0);
+  });
+
+  it('shows a batch\'s equilibrium table on hover and its headline result as an inlay hint', async () => {
+    client = new LspTestClient();
+    const init = (await client.initialize()) as { capabilities: Record<string, unknown> };
+    expect(init.capabilities.inlayHintProvider).toBeTruthy();
+    // Esterification with K = 4 from a 1:1 start converts 2/3 of the acid: x²/(1 − x)² = 4
+    // gives x = 2/3 (closed form; the classic textbook esterification example).
+    const text = [
+      'species acid = C6H12O2 (l)',
+      'species EtOH = C2H5OH (l)',
+      'species ester = C8H16O2 (l)',
+      'esterify: acid + EtOH <=> ester + H2O(l)',
+      '  K = 4.0 at 60 °C',
+      'batch trial-1 at 60 °C',
+      '  acid 1.0 mol',
+      '  EtOH 1.0 mol',
+      '',
+    ].join('\n');
+    const uri = 'file:///tmp/stillpoint-test/esterify.eqnb';
+    client.notify('textDocument/didOpen', { textDocument: { uri, languageId: 'eqnb', version: 1, text } });
+    const published = await client.waitFor<PublishedDiagnostics>('textDocument/publishDiagnostics', (p) => p.uri === uri);
+    expect(published.diagnostics).toEqual([]);
+    const hover = await client.request<{ contents: { value: string } }>('textDocument/hover', {
+      textDocument: { uri },
+      position: { line: 5, character: 8 },
+    });
+    expect(hover.contents.value).toContain('Equilibrium / mol');
+    expect(hover.contents.value).toMatch(/\| ester \| l \| 0 \| \+0\.6667 \| 0\.6667 \|/);
+    expect(hover.contents.value).toContain('Conversion of acid: **66.7 %**');
+    expect(hover.contents.value).toContain('not a process-safety assessment');
+    const hints = await client.request<{ position: { line: number; character: number }; label: string }[]>('textDocument/inlayHint', {
+      textDocument: { uri },
+      range: { start: { line: 0, character: 0 }, end: { line: 8, character: 0 } },
+    });
+    expect(hints).toHaveLength(1);
+    expect(hints[0].position).toEqual({ line: 5, character: 22 });
+    expect(hints[0].label).toBe('⇒ 66.7 % conversion of acid');
     expect(await client.shutdown()).toBe(0);
   });
 

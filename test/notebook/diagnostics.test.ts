@@ -270,9 +270,15 @@ describe('examples/', () => {
   });
 
   for (const p of clean) {
-    it(`${relative(REPO_ROOT, p)} analyses with zero diagnostics`, () => {
+    it(`${relative(REPO_ROOT, p)} analyses with no diagnostics but the cautions its notes announce`, () => {
       const text = readFileSync(p, 'utf8');
-      expect(describeRanges(rangesOf(text, analyse(text).diagnostics))).toEqual([]);
+      const lines = text.split(/\r?\n/);
+      // A pressure caution is the point of some examples (a closed autoclave); such a line says
+      // "caution" in its note. Anything else is a defect in the example.
+      const unexpected = rangesOf(text, analyse(text).diagnostics).filter(
+        (r) => !(r.code === 'pressure-caution' && /#.*caution/i.test(lines[r.line] ?? '')),
+      );
+      expect(describeRanges(unexpected)).toEqual([]);
     });
   }
 

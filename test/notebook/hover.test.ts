@@ -95,9 +95,12 @@ describe('hover: ranges and numbers checked by hand', () => {
     expect(md).toContain('| H | 3 | 3 | ✓ |');
     // Δn(gas) = 1 − (1/2 + 3/2) = −1 (counted by hand)
     expect(md).toContain('Δn(gas) = -1 mol per mole of reaction');
-    // 400 °C = 673.15 K and 25 °C = 298.15 K (0 °C = 273.15 K, from memory)
-    expect(md).toContain('K = 0.45 at 400 °C (673.15 K)');
-    expect(md).toContain('K = 600000 at 25 °C (298.15 K)');
+    // ΔG° = −R T ln K (closed form): at 400 °C = 673.15 K, −8.314462618 × 673.15 × ln 0.45 = +4.469 kJ/mol;
+    // at 25 °C = 298.15 K, −8.314462618 × 298.15 × ln 6e5 = −32.98 kJ/mol
+    expect(md).toContain('| 400 °C | 0.45 | 4.469 kJ/mol | given (K) |');
+    expect(md).toContain('| 25 °C | 600000 | -32.98 kJ/mol | given (K) |');
+    // Δn(gas) = −1: more pressure favours the right (Le Chatelier, common practice)
+    expect(md).toContain('Higher pressure pushes it to the right');
   });
 
   it('unbalanced reaction arrow: the charge row is marked, and the term without a phase is named', () => {
@@ -120,17 +123,19 @@ describe('hover: ranges and numbers checked by hand', () => {
     const md = hoverOf('batch-name').result!.markdown;
     // 75 °C = 348.15 K (0 °C = 273.15 K, from memory)
     expect(md).toContain('Temperature: 75 °C (348.15 K)');
-    expect(md).toContain('Pressure: 2 bar');
+    expect(md).toContain('Closed vessel: 1 L, of which 300 mL liquid (constant volume)');
     // computed from IUPAC 2021 atomic weights: C6H12O2 6 × 12.011 + 12 × 1.008 + 2 × 15.999 = 116.160 g/mol;
     // C2H5OH 2 × 12.011 + 6 × 1.008 + 15.999 = 46.069 g/mol
-    expect(md).toContain('| acid | 116 g | C6H12O2 | 116.160 |');
-    expect(md).toContain('| EtOH | 175 mL | C2H5OH | 46.069 |');
+    expect(md).toContain('acid: 116 g ÷ 116.160 g/mol');
+    expect(md).toContain('EtOH: 175 mL × 0.789 g/mL ÷ 46.069 g/mol');
+    // 116 g ÷ 116.160 g/mol = 0.9986 mol of acid (closed form)
+    expect(md).toContain('| acid | l | 0.9986 |');
   });
 
   it('batch with no pressure written: 1 atm by default', () => {
     const md = hoverOf('batch-default-pressure').result!.markdown;
     // the default pressure is the standard atmosphere, 1 atm = 101325 Pa (common practice)
-    expect(md).toContain('Pressure: 1 atm (default, none written)');
+    expect(md).toContain('Pressure: 1 atm (default: none written)');
   });
 
   it('unit: 1 atm in bar', () => {

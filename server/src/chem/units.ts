@@ -160,6 +160,73 @@ function linearToSI(m: MathJsInstance, unitText: string, reference: string): (v:
   return intercept === 0 ? (v) => v * slope : (v) => intercept + v * slope;
 }
 
+export type UnitPowerResult =
+  | { ok: true; base: 'pressure' | 'concentration' | 'dimensionless'; power: number; siFactor: number }
+  | { ok: false; message: string };
+
+/** Powers we accept for Kp and Kc units: Δn may be a half-integer when coefficients are fractions. */
+const POWER_DENOMINATOR = 2;
+
+/**
+ * Reads the unit of a pressure- or concentration-based equilibrium constant (`atm^-2`,
+ * `bar`, `kPa^-1`, `(mol/L)^-1`, `L/mol`, `M^2`) as a power of a pressure or concentration.
+ * `siFactor` is the SI value of one written unit (Pa^power or (mol/m^3)^power).
+ */
+export function parseUnitPower(text: string): UnitPowerResult {
+  const trimmed = text.trim();
+  // mathjs reads no power of a parenthesised unit and no leading `1/`; both are common in K units.
+  const grouped = /^\((.+)\)\s*\^\s*\(?([+\-−]?\d+(?:\.\d+)?(?:\/\d+)?)\)?$/.exec(trimmed);
+  const reciprocal = /^1\s*\/\s*(.+)$/.exec(trimmed);
+  if (grouped || reciprocal) {
+    const inner = parseUnitPower(grouped ? grouped[1] : reciprocal![1]);
+    if (!inner.ok) return inner;
+    let exponent = -1;
+    if (grouped) {
+      const [num, den] = grouped[2].replace('−', '-').split('/');
+      exponent = Number(num) / (den ? Number(den) : 1);
+    }
+    const power = inner.power * exponent;
+    if (!Number.isInteger(power * POWER_DENOMINATOR)) return { ok: false, message: `\`${trimmed}\`: powers must be whole or half numbers` };
+    return { ok: true, base: inner.base, power, siFactor: inner.siFactor ** exponent };
+  }
+  if (!/^[A-Za-z(µμ°][A-Za-z0-9µμ °/*^·()\-−+.]*$/.test(trimmed)) return { ok: false, message: `\`${trimmed}\` is not a unit` };
+  const m = math();
+  let unit: Unit;
+  try {
+    unit = m.Unit.parse(normaliseUnitText(trimmed)) as Unit;
+  } catch (e) {
+    const detail = e instanceof Error && !/not found/.test(e.message) ? ` (${e.message.replace(/\.$/, '')})` : '';
+    return { ok: false, message: `unknown unit \`${trimmed}\`${detail}` };
+  }
+  if ((unit as unknown as { value: unknown }).value !== null) {
+    return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };
+  }
+  const dims = unit.dimensions;
+  const siFactor = m.unit(1, normaliseUnitText(trimmed)).toSI().toNumber();
+  if (dims.every((d) => d === 0)) return { ok: true, base: 'dimensionless', power: 0, siFactor };
+  for (const [base, reference] of [
+    ['pressure', 'Pa'],
+    ['concentration', 'mol/m^3'],
+  ] as const) {
+    const refDims = m.unit(reference).dimensions;
+    let power: number | undefined;
+    let consistent = true;
+    for (let i = 0; i < dims.length; i++) {
+      if (refDims[i] === 0) {
+        if (dims[i] !== 0) consistent = false;
+        continue;
+      }
+      const p = dims[i] / refDims[i];
+      if (power === undefined) power = p;
+      else if (Math.abs(power - p) > 1e-12) consistent = false;
+    }
+    if (consistent && power !== undefined && Number.isInteger(power * POWER_DENOMINATOR)) {
+      return { ok: true, base, power, siFactor };
+    }
+  }
+  return { ok: false, message: `\`${trimmed}\` is not a power of a pressure or concentration unit` };
+}
+
 /** Human name of a dimension, for messages ("expected a temperature"). */
 export function describeDimension(d: Dimension): string {
   switch (d) {

@@ -7,6 +7,7 @@ import { parseFormula } from '../chem/formula';
 import { trim } from '../chem/units';
 import { rewriteEquation } from '../notebook/semantic/balance-check';
 import { createNotebookService, type Analysis, type Diagnostic } from '../notebook/ide/service';
+import { solve } from './solve';
 
 const USAGE = `usage: stillpoint COMMAND [ARGS] [--json]
 
@@ -14,6 +15,8 @@ commands:
   check PATH... [--json]        check notebooks (a folder means every .eqnb file under it)
   balance "EQUATION" [--json]   balance an equation with the smallest whole-number coefficients
   formula "FORMULA" [--json]    composition, charge and molar mass of a formula
+  solve FILE [--batch NAME] [--json]
+                                equilibrium composition of each batch (or one)
   help                          show this text
 
 exit status: 0 success, 1 an error diagnostic or failure, 2 bad usage`;
@@ -23,15 +26,29 @@ export interface CliIo {
   err(text: string): void;
 }
 
-class UsageError extends Error {}
+export class UsageError extends Error {}
+
+function parseOptions(argv: readonly string[]): { args: string[]; json: boolean; batch?: string } {
+  const args: string[] = [];
+  let json = false;
+  let batch: string | undefined;
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a === '--json') json = true;
+    else if (a === '--batch') {
+      if (i + 1 >= argv.length || argv[i + 1].startsWith('--')) throw new UsageError('--batch needs a batch name');
+      batch = argv[++i];
+    } else if (a.startsWith('--')) throw new UsageError(`unknown option ${a}`);
+    else args.push(a);
+  }
+  return { args, json, batch };
+}
 
 export function runCli(argv: readonly string[], io: CliIo): number {
   try {
-    const json = argv.includes('--json');
-    const unknownFlags = argv.filter((a) => a.startsWith('--') && a !== '--json');
-    if (unknownFlags.length > 0) throw new UsageError(`unknown option ${unknownFlags[0]}`);
-    const args = argv.filter((a) => a !== '--json');
+    const { args, json, batch } = parseOptions(argv);
     const [command, ...rest] = args;
+    if (batch !== undefined && command !== 'solve') throw new UsageError('--batch belongs to `solve`');
     switch (command) {
       case 'check':
         if (rest.length === 0) throw new UsageError('check needs at least one file or folder');
@@ -42,6 +59,9 @@ export function runCli(argv: readonly string[], io: CliIo): number {
       case 'formula':
         if (rest.length !== 1) throw new UsageError('formula takes one formula, in quotes');
         return formula(rest[0], json, io);
+      case 'solve':
+        if (rest.length !== 1) throw new UsageError('solve takes one notebook file');
+        return solve(rest[0], batch, json, io);
       case 'help':
       case '-h':
         io.out(USAGE);

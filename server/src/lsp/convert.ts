@@ -9,9 +9,10 @@ import {
   MarkupKind,
   SymbolKind,
   type Hover as LspHover,
+  type InlayHint as LspInlayHint,
   type Range,
 } from 'vscode-languageserver/node';
-import type { Analysis, CodeAction, Diagnostic, Hover, NotebookSymbol, Severity } from '../notebook/ide/service';
+import type { Analysis, CodeAction, Diagnostic, Hover, InlayHint, NotebookSymbol, Severity } from '../notebook/ide/service';
 
 export const DIAGNOSTIC_SOURCE = 'stillpoint';
 
@@ -68,4 +69,8 @@ export function toDocumentSymbol(analysis: Analysis, s: NotebookSymbol): Documen
     range: toRange(analysis, s.start, s.end),
     selectionRange: toRange(analysis, s.selectionStart, s.selectionEnd),
   };
+}
+
+export function toInlayHint(analysis: Analysis, h: InlayHint): LspInlayHint {
+  return { position: analysis.lines.position(h.offset), label: h.label, paddingLeft: true, tooltip: h.tooltip };
 }

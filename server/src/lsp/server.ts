@@ -9,7 +9,7 @@ import {
   type InitializeResult,
 } from 'vscode-languageserver/node';
 import { createNotebookService } from '../notebook/ide/service';
-import { toCodeAction, toDiagnostic, toDocumentSymbol, toHover } from './convert';
+import { toCodeAction, toDiagnostic, toDocumentSymbol, toHover, toInlayHint } from './convert';
 import { DocumentStore } from './documents';
 import { runSafe } from './safe';
 
@@ -31,6 +31,7 @@ export function startServer(connection: Connection): void {
         hoverProvider: true,
         codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix] },
         documentSymbolProvider: true,
+        inlayHintProvider: true,
       },
       serverInfo: { name: 'stillpoint', version: '0.1.0' },
     };
@@ -85,6 +86,16 @@ export function startServer(connection: Connection): void {
       const analysis = store.analysis(params.textDocument.uri);
       if (!analysis) return [];
       return service.documentSymbols(analysis).map((s) => toDocumentSymbol(analysis, s));
+    }),
+  );
+
+  connection.languages.inlayHint.on((params) =>
+    runSafe(connection, 'inlay hints', [], () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return [];
+      const start = analysis.lines.offset(params.range.start);
+      const end = analysis.lines.offset(params.range.end);
+      return service.inlayHints(analysis, start, end).map((h) => toInlayHint(analysis, h));
     }),
   );
 

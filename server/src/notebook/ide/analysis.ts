@@ -3,9 +3,11 @@
 // CLI call this; neither re-parses nor re-checks on their own.
 import { parse } from '../syntax/parser';
 import type { ParseResult, StatementNode } from '../syntax/tree';
-import { buildModel } from '../semantic/build';
+import { BalanceCache, buildModel } from '../semantic/build';
 import { diagnostic, type Diagnostic } from '../semantic/codes';
 import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../semantic/model';
+import { batchInputs } from '../semantic/batch-inputs';
+import { resultDiagnostics, SolveCache, solveBatch, type BatchResult } from '../semantic/batch-results';
 import { LineIndex } from './line-index';
 
 export interface Analysis {
@@ -15,6 +17,8 @@ export interface Analysis {
   /** Syntax and semantic diagnostics, sorted by start offset. */
   readonly diagnostics: readonly Diagnostic[];
   readonly lines: LineIndex;
+  /** Each batch's equilibrium result, when its inputs were complete. */
+  readonly results: ReadonlyMap<BatchModel, BatchResult>;
   /** The statement at an offset (binary search), with its model item when it has one. */
   statementAt(offset: number): StatementAt | undefined;
 }
@@ -25,12 +29,34 @@ export type StatementAt =
   | { readonly node: StatementNode; readonly kind: 'batch'; readonly item: BatchModel }
   | { readonly node: StatementNode; readonly kind: 'error' };
 
-export function analyse(text: string): Analysis {
+/** Caches shared across the analyses of one session: unchanged reactions and batches are not re-solved. */
+export interface AnalysisCaches {
+  readonly solves: SolveCache;
+  readonly balances: BalanceCache;
+}
+
+export function createCaches(): AnalysisCaches {
+  return { solves: new SolveCache(), balances: new BalanceCache() };
+}
+
+export function analyse(text: string, caches: AnalysisCaches = createCaches()): Analysis {
+  const cache = caches.solves;
   const syntax = parse(text);
-  const model = buildModel(syntax.tree, syntax.errors);
+  const model = buildModel(syntax.tree, syntax.errors, caches.balances);
+  const batchDiagnostics: Diagnostic[] = [];
+  const results = new Map<BatchModel, BatchResult>();
+  for (const batch of model.batches) {
+    const inputs = batchInputs(batch, model);
+    batchDiagnostics.push(...inputs.diagnostics);
+    if (!inputs.inputs) continue;
+    const result = solveBatch(inputs.inputs, cache);
+    results.set(batch, result);
+    batchDiagnostics.push(...resultDiagnostics(batch, result));
+  }
   const diagnostics: Diagnostic[] = [
     ...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)),
     ...model.diagnostics,
+    ...batchDiagnostics,
   ].sort((a, b) => a.start - b.start || a.end - b.end);
   const items = new Map<StatementNode, StatementAt>();
   for (const d of model.speciesList) items.set(d.node, { node: d.node, kind: 'species', item: d });
@@ -53,5 +79,5 @@ export function analyse(text: string): Analysis {
     }
     return undefined;
   };
-  return { text, syntax, model, diagnostics, lines: new LineIndex(text), statementAt };
+  return { text, syntax, model, diagnostics, lines: new LineIndex(text), results, statementAt };
 }

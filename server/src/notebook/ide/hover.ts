@@ -7,7 +7,11 @@ import { formatFormulaCharge, type Formula } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
 import { formatQuantity, parseUnit, SI_UNIT_TEXT, trim } from '../../chem/units';
 import { tokenAt, type Token } from '../syntax/tree';
-import { PHASE_NAMES, type BatchModel, type Phase, type ReactionModel, type ResolvedSpecies, type SpeciesDecl } from '../semantic/model';
+import { PHASE_NAMES, type BatchModel, type NotebookModel, type Phase, type ReactionModel, type ResolvedSpecies, type SpeciesDecl } from '../semantic/model';
+import { gibbsFromLnK, T_REF } from '../../chem/thermo';
+import { hessThermo, kAt } from '../semantic/batch-inputs';
+import { batchReport, celsius, ESTIMATE_NOTE, kSourceText, num } from './batch-report';
+import { markdownTable } from './tables';
 import { KNOWN_PROPERTIES } from '../semantic/properties';
 import type { Analysis } from './analysis';
 
@@ -48,7 +52,7 @@ export function hover(analysis: Analysis, offset: number): Hover | undefined {
       return term?.species ? span(resolvedMarkdown(term.species)) : undefined;
     }
     if (tok.kind === 'keyword' && tok.text !== 'at') return propertyHover(tok, 'reaction');
-    return span(reactionMarkdown(r), { ...tok, start: r.equationStart, end: r.equationEnd });
+    return { markdown: reactionMarkdown(r, analysis.model), start: r.equationStart, end: r.equationEnd };
   }
   if (at.kind === 'batch') {
     const b = at.item;
@@ -58,7 +62,7 @@ export function hover(analysis: Analysis, offset: number): Hover | undefined {
     }
     if (tok.kind === 'name' && b.node.name !== tok) {
       const reaction = analysis.model.reactions.find((r) => r.label === tok.text);
-      if (reaction) return span(reactionMarkdown(reaction));
+      if (reaction) return span(reactionMarkdown(reaction, analysis.model));
       const species = analysis.model.species.get(tok.text);
       if (species) return span(speciesMarkdown(species.name, species.formula, species.phase, species));
       return undefined;
@@ -130,7 +134,7 @@ export function speciesMarkdown(name: string | undefined, formula: Formula | und
   return lines.join('\n');
 }
 
-export function reactionMarkdown(r: ReactionModel): string {
+export function reactionMarkdown(r: ReactionModel, model: NotebookModel): string {
   const lines: string[] = [];
   const kind = r.reversible ? 'reversible' : 'one-way';
   lines.push(`**${r.label}**${r.labelIsAuto ? ' (automatic label)' : ''}: ${kind} reaction`, '');
@@ -145,10 +149,57 @@ export function reactionMarkdown(r: ReactionModel): string {
     const gas = gasChange(r);
     lines.push('', `Δn(gas) = ${gas.delta.toString()} mol per mole of reaction (right − left, gas-phase terms)${gas.unknown.length > 0 ? `; no phase given for ${gas.unknown.map((s) => `\`${s}\``).join(', ')}, so not counted as gas` : ''}`);
   }
-  for (const k of r.constants) {
-    lines.push('', `K = ${trim(k.value)} at ${formatQuantity(k.temperature, 'temperature')}`);
-  }
+  lines.push(...reactionDataMarkdown(r, model));
   return lines.join('\n');
+}
+
+/**
+ * K at the reaction's own temperature(s) and at 25 °C with ΔG°, where its data (or Hess's law)
+ * give them, and what shifts it: pressure from Δn of gas, temperature from the sign of ΔH°,
+ * and composition.
+ */
+function reactionDataMarkdown(r: ReactionModel, model: NotebookModel): string[] {
+  if (!r.reversible) return ['', 'One-way: in a batch it runs to completion first, limited by its limiting reagent.'];
+  const temps = new Set<number>([...(r.thermo?.points.map((p) => p.T) ?? []), T_REF]);
+  const rows: string[][] = [];
+  for (const T of [...temps].sort((a, b) => a - b)) {
+    const k = kAt(r, model, T);
+    if (!k) continue;
+    rows.push([celsius(T), num(Math.exp(k.lnK)), `${num(gibbsFromLnK(k.lnK, T) / 1000)} kJ/mol`, kSourceText(k.source)]);
+  }
+  const out: string[] = [''];
+  if (rows.length === 0) {
+    out.push('No equilibrium data: add `K = … at …` (or log K, Kp, Kc, ΔG°, ΔH° with ΔS°), or formation data to its species.');
+  } else {
+    out.push(markdownTable({ header: ['T', 'K', 'ΔG°', 'K from'], align: ['r', 'r', 'r', 'l'], rows }));
+  }
+  const shifts: string[] = [];
+  const gas = gasChange(r);
+  if (gas.unknown.length === 0) {
+    const dn = gas.delta.toNumber();
+    shifts.push(
+      dn < 0
+        ? 'Higher pressure pushes it to the right (fewer moles of gas there).'
+        : dn > 0
+          ? 'Higher pressure pushes it to the left (fewer moles of gas there); lower pressure or an inert sweep favours the right.'
+          : 'Pressure has no effect on its position (Δn of gas = 0).',
+    );
+  }
+  const dH = r.thermo?.dH ?? hessThermo(r)?.dH;
+  if (dH !== undefined) {
+    shifts.push(
+      dH < 0
+        ? `Exothermic (ΔH° = ${trim(dH / 1000)} kJ/mol): higher temperature lowers K.`
+        : dH > 0
+          ? `Endothermic (ΔH° = ${trim(dH / 1000)} kJ/mol): higher temperature raises K.`
+          : 'ΔH° = 0: K does not change with temperature.',
+    );
+  } else {
+    shifts.push('Temperature effect unknown: give ΔH° (or K at two temperatures).');
+  }
+  shifts.push('An excess of a reactant, or removing a product as it forms (distilling, venting, precipitating), drives it to the right.');
+  out.push('', '**What shifts it**', '', ...shifts.map((x) => `- ${x}`));
+  return out;
 }
 
 /** Σν over gas-phase terms, right minus left; also the terms whose phase is unknown. */
@@ -169,23 +220,17 @@ export function gasChange(r: ReactionModel): { delta: Rational; unknown: string[
 }
 
 function batchMarkdown(b: BatchModel, analysis: Analysis): string {
-  const lines: string[] = [];
-  lines.push(`**batch ${b.name}**`, '');
-  lines.push(`Temperature: ${b.temperature !== undefined ? formatQuantity(b.temperature, 'temperature') : 'not readable'}`);
-  lines.push(`Pressure: ${b.pressureIsDefault ? '1 atm (default, none written)' : formatQuantity(b.pressure, 'pressure')}`);
-  if (b.vessel !== undefined) lines.push(`Closed vessel: ${formatQuantity(b.vessel, 'volume')}`);
-  if (b.volume !== undefined) lines.push(`Liquid volume: ${formatQuantity(b.volume, 'volume')}`);
-  if (b.amounts.length > 0) {
-    lines.push('', '| Species | Charged | Formula | g/mol |', '|:--|--:|:--|--:|');
-    for (const a of b.amounts) {
-      const amount = a.value !== undefined && a.dimension ? formatQuantity(a.value, a.dimension) : '?';
-      const f = a.species?.formula;
-      lines.push(`| ${a.node.species.text} | ${amount} | ${f ? f.text : '?'} | ${f ? f.molarMass.toFixed(3) : '?'} |`);
-    }
+  const report = batchReport(analysis, b);
+  const lines: string[] = [`**${report.title}**`, '', ...report.conditions.map((c) => `${c}  `)];
+  if (!report.solved) {
+    lines.push('', report.problem ?? 'Not solved.');
+    return lines.join('\n');
   }
-  const reactions = b.uses ?? analysis.model.reactions.filter((r) => r.reversible);
-  if (reactions.length > 0) {
-    lines.push('', `Reactions${b.uses ? ' (from `uses`)' : ' in this notebook'}: ${reactions.map((r) => `\`${r.label}\``).join(', ')}`);
-  }
+  lines.push('', `_${ESTIMATE_NOTE}_`);
+  if (report.cautions.length > 0) lines.push('', ...report.cautions.map((c) => `⚠ ${c}`));
+  if (report.species) lines.push('', markdownTable(report.species));
+  if (report.reactions && report.reactions.rows.length > 0) lines.push('', markdownTable(report.reactions));
+  if (report.summary.length > 0) lines.push('', ...report.summary.map((x) => `- ${x}`));
+  if (report.assumptions.length > 0) lines.push('', `_Assumptions: ${report.assumptions.join('; ')}._`);
   return lines.join('\n');
 }

@@ -1,15 +1,19 @@
 // The analysis API: one factory returning plain functions over offsets and
 // plain data. The language server and the CLI are thin callers of this; it
 // knows nothing of the protocol or the terminal.
-import { analyse, type Analysis } from './analysis';
+import { analyse, createCaches, type Analysis } from './analysis';
 import { codeActions } from './actions';
 import { hover } from './hover';
 import { documentSymbols } from './symbols';
+import { inlayHints } from './inlay-hints';
+import { batchReport } from './batch-report';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
 export type { Hover } from './hover';
 export type { NotebookSymbol } from './symbols';
+export type { InlayHint } from './inlay-hints';
+export type { BatchReport } from './batch-report';
 export type { Diagnostic, Fix, TextEdit, Severity, DiagnosticCode } from '../semantic/codes';
 
 export interface NotebookService {
@@ -17,8 +21,11 @@ export interface NotebookService {
   hover: typeof hover;
   codeActions: typeof codeActions;
   documentSymbols: typeof documentSymbols;
+  inlayHints: typeof inlayHints;
+  batchReport: typeof batchReport;
 }
 
 export function createNotebookService(): NotebookService {
-  return { analyse, hover, codeActions, documentSymbols };
+  const caches = createCaches();
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport };
 }

@@ -14,7 +14,6 @@ import {
   STANDARD_ATMOSPHERE,
   type BatchAmount,
   type BatchModel,
-  type EquilibriumConstant,
   type NotebookModel,
   type Phase,
   type ReactionModel,
@@ -22,7 +21,9 @@ import {
   type ResolvedSpecies,
   type SpeciesDecl,
 } from './model';
-import { KNOWN_PROPERTIES, readQuantity } from './properties';
+import { readPropertyLines, readQuantity, type PropertyValue } from './properties';
+import { reactionThermo } from './reaction-data';
+import type { FormationData } from '../../chem/thermo';
 
 const RESERVED_NAMES: ReadonlySet<string> = new Set<string>([...STATEMENT_KEYWORDS, ...BATCH_KEYWORDS, 'at']);
 
@@ -30,8 +31,8 @@ const RESERVED_NAMES: ReadonlySet<string> = new Set<string>([...STATEMENT_KEYWOR
  * `syntaxErrors` are the parser's errors: a reaction whose line has one is not balance-checked,
  * since its terms are incomplete and a balance report would only add noise.
  */
-export function buildModel(tree: FileNode, syntaxErrors: readonly SyntaxError[] = []): NotebookModel {
-  return new Builder(tree, syntaxErrors).run();
+export function buildModel(tree: FileNode, syntaxErrors: readonly SyntaxError[] = [], balances: BalanceCache = new BalanceCache()): NotebookModel {
+  return new Builder(tree, syntaxErrors, balances).run();
 }
 
 class Builder {
@@ -44,7 +45,24 @@ class Builder {
   constructor(
     private readonly tree: FileNode,
     private readonly syntaxErrors: readonly SyntaxError[],
-  ) {}
+    private readonly balances: BalanceCache,
+  ) {
+    this.errorStarts = syntaxErrors.map((e) => e.start).sort((a, b) => a - b);
+  }
+
+  /** Sorted start offsets of the syntax errors, for a binary search per reaction. */
+  private readonly errorStarts: number[];
+
+  private hasSyntaxErrorIn(start: number, end: number): boolean {
+    let lo = 0;
+    let hi = this.errorStarts.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (this.errorStarts[mid] < start) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo < this.errorStarts.length && this.errorStarts[lo] < end;
+  }
 
   run(): NotebookModel {
     for (const s of this.tree.statements) if (s.type === 'species') this.declareSpecies(s);
@@ -80,30 +98,36 @@ class Builder {
     let formula: Formula | undefined;
     if (node.formula) formula = this.readFormula(node.formula, 'declaration');
     const phase = node.phase ? this.readPhase(node.phase) : undefined;
-    const props = this.readProperties(node.properties, 'species');
+    const { values, diagnostics } = readPropertyLines(node.properties, 'species');
+    for (const d of diagnostics) this.report(d);
+    const one = (key: string): PropertyValue | undefined => values.get(key)?.[0];
     if (!nameToken) return;
     const name = nameToken.text;
     if (RESERVED_NAMES.has(name)) {
       this.report(diagnostic('reserved-name', `\`${name}\` is a keyword of the notebook; choose another species name`, nameToken.start, nameToken.end));
       return;
     }
+    const purity = one('purity');
+    if (purity && (purity.value <= 0 || purity.value > 1)) {
+      this.report(diagnostic('bad-quantity', 'purity must be more than 0 % and at most 100 %', purity.range.start, purity.range.end));
+    }
+    const density = one('density');
+    if (density && density.value <= 0) {
+      this.report(diagnostic('bad-quantity', 'density must be positive', density.range.start, density.range.end));
+    }
+    const S = one('S°');
+    if (S && S.value <= 0) this.report(diagnostic('bad-quantity', 'a standard molar entropy is positive (third law)', S.range.start, S.range.end));
+    const formation: FormationData = { dfG: one('ΔfG°')?.value, dfH: one('ΔfH°')?.value, S: S?.value, Cp: one('Cp°')?.value };
     const decl: SpeciesDecl = {
       name,
       nameToken,
       node,
       formula,
       phase,
-      density: props.get('density')?.value,
-      purity: props.get('purity')?.value,
+      density: density && density.value > 0 ? density.value : undefined,
+      purity: purity && purity.value > 0 && purity.value <= 1 ? purity.value : undefined,
+      formation: Object.values(formation).some((v) => v !== undefined) ? formation : undefined,
     };
-    const purity = props.get('purity');
-    if (purity && (purity.value <= 0 || purity.value > 1)) {
-      this.report(diagnostic('bad-quantity', 'purity must be more than 0 % and at most 100 %', purity.range.start, purity.range.end));
-    }
-    const density = props.get('density');
-    if (density && density.value <= 0) {
-      this.report(diagnostic('bad-quantity', 'density must be positive', density.range.start, density.range.end));
-    }
     const previous = this.species.get(name);
     if (previous) {
       this.report(
@@ -145,58 +169,6 @@ class Builder {
     return undefined;
   }
 
-  // ---- properties -----------------------------------------------------------------------
-
-  private readProperties(
-    lines: readonly PropertyLine[],
-    owner: 'species' | 'reaction' | 'batch',
-  ): Map<string, PropertyValue> {
-    const found = new Map<string, PropertyValue>();
-    const known = KNOWN_PROPERTIES[owner];
-    const seen = new Set<string>();
-    for (const line of lines) {
-      if (line.type !== 'property') continue;
-      const spec = known[line.keyText];
-      if (!spec) {
-        const first = line.key[0];
-        const last = line.key[line.key.length - 1];
-        this.report(
-          diagnostic(
-            'unknown-property',
-            `unknown ${owner} property \`${line.keyText}\`; known ${owner} properties: ${Object.keys(known).map((k) => `\`${k}\``).join(', ')}`,
-            first.start,
-            last.end,
-          ),
-        );
-        continue;
-      }
-      // K may be given at several temperatures; repeats at one temperature are found once the
-      // values are read (reactionConstants), so that a bad line does not count as a repeat.
-      if (line.keyText !== 'K' && seen.has(line.keyText)) {
-        this.report(
-          diagnostic('duplicate-property', `\`${line.keyText}\` is given twice; the first is used`, line.key[0].start, line.key[line.key.length - 1].end),
-        );
-        continue;
-      }
-      seen.add(line.keyText);
-      if (spec.kind !== 'quantity') continue;
-      if (line.keyText !== 'K' && found.has(line.keyText)) {
-        this.report(diagnostic('duplicate-property', `\`${line.keyText}\` is given twice; the first is used`, line.key[0].start, line.key[line.key.length - 1].end));
-        continue;
-      }
-      if (line.value) {
-        const q = readQuantity(line.value, spec.dimensions, `\`${line.keyText}\``);
-        for (const d of q.diagnostics) this.report(d);
-        if (q.value !== undefined && !found.has(line.keyText)) found.set(line.keyText, { value: q.value, node: line, range: line.value });
-      }
-      if (line.temperature && !spec.temperature) {
-        const at = line.at ?? line.temperature;
-        this.report(diagnostic('syntax', `\`${line.keyText}\` takes no temperature; remove \`at …\``, at.start, line.temperature.end));
-      }
-    }
-    return found;
-  }
-
   // ---- reactions ------------------------------------------------------------------------
 
   private reaction(node: import('../syntax/tree').ReactionNode, position: number): ReactionModel {
@@ -209,72 +181,22 @@ class Builder {
     const label = node.label?.text ?? `R${position}`;
     const reversible = node.arrow.text === '<=>' || node.arrow.text === '⇌';
     this.checkSameSpeciesBothSides(terms);
-    const constants = this.reactionConstants(node.properties);
+    const props = readPropertyLines(node.properties, 'reaction');
+    for (const d of props.diagnostics) this.report(d);
+    const data = reactionThermo(props.values, terms);
+    for (const d of data.diagnostics) this.report(d);
     let balance: ReactionModel['balance'];
     const headerEnd = node.children.find((c) => c.type === 'token' && c.kind === 'newline')?.start ?? node.end;
-    const lineHasSyntaxError = this.syntaxErrors.some((e) => e.start >= node.start && e.start < headerEnd);
+    const lineHasSyntaxError = this.hasSyntaxErrorIn(node.start, headerEnd);
     const complete =
       !lineHasSyntaxError &&
       node.left.length > 0 &&
       node.right.length > 0 &&
       terms.every((t) => t.species !== undefined && t.coefficient !== undefined);
-    if (complete) {
-      const balanceTerms: BalanceTerm[] = terms.map((t) => ({
-        composition: t.species!.formula.composition,
-        charge: t.species!.formula.charge,
-        side: t.side,
-      }));
-      const tally = tallyBalance(balanceTerms, terms.map((t) => t.coefficient!));
-      const solution = solveBalance(balanceTerms);
-      balance = { tallies: tally.tallies, balanced: tally.balanced, solution };
-    }
-    const model: ReactionModel = { node, label, labelIsAuto: !node.label, reversible, terms, equationStart, equationEnd, balance, constants };
+    if (complete) balance = this.balances.balance(terms);
+    const model: ReactionModel = { node, label, labelIsAuto: !node.label, reversible, terms, equationStart, equationEnd, balance, thermo: data.thermo };
     for (const d of balanceDiagnostics(model)) this.report(d);
     return model;
-  }
-
-  private reactionConstants(lines: readonly PropertyLine[]): EquilibriumConstant[] {
-    const out: EquilibriumConstant[] = [];
-    this.readProperties(lines, 'reaction');
-    for (const line of lines) {
-      if (line.type !== 'property' || line.keyText !== 'K' || !line.value) continue;
-      const q = readQuantity(line.value, ['dimensionless'], '`K`', { silent: true });
-      if (q.value === undefined) continue;
-      if (q.value <= 0) {
-        this.report(
-          diagnostic(
-            'bad-quantity',
-            q.value === 0
-              ? 'K must be positive: K = 0 would mean no product at all; for a step that does not go, leave the reaction out'
-              : 'K must be positive: an equilibrium constant is a ratio of activities',
-            line.value.start,
-            line.value.end,
-          ),
-        );
-        continue;
-      }
-      if (!line.temperature) {
-        this.report(
-          diagnostic('missing-temperature', 'an equilibrium constant belongs to a temperature: write `K = … at 25 °C`', line.key[0].start, line.value.end),
-        );
-        continue;
-      }
-      const t = readQuantity(line.temperature, ['temperature'], 'the temperature');
-      for (const d of t.diagnostics) this.report(d);
-      if (t.value === undefined) continue;
-      if (t.value <= 0) {
-        this.report(diagnostic('bad-quantity', 'temperature must be above absolute zero', line.temperature.start, line.temperature.end));
-        continue;
-      }
-      if (out.some((k) => Math.abs(k.temperature - t.value!) < SAME_TEMPERATURE_K)) {
-        this.report(
-          diagnostic('duplicate-property', '`K` is given twice for the same temperature; the first is used', line.key[0].start, line.key[line.key.length - 1].end),
-        );
-        continue;
-      }
-      out.push({ value: q.value, temperature: t.value, node: line });
-    }
-    return out;
   }
 
   private term(node: TermNode, side: 'left' | 'right'): ReactionTerm {
@@ -442,11 +364,22 @@ class Builder {
         pressureIsDefault = false;
       }
     }
-    const props = this.readProperties(node.properties, 'batch');
-    const vessel = this.positive(props.get('vessel'), 'the vessel volume');
-    const volume = this.positive(props.get('volume'), 'the liquid volume');
+    const props = readPropertyLines(node.properties, 'batch');
+    for (const d of props.diagnostics) this.report(d);
+    const vessel = this.positive(props.values.get('vessel')?.[0], 'the vessel volume');
+    if (vessel !== undefined && node.pressure && !pressureIsDefault) {
+      this.report(
+        diagnostic(
+          'unused-pressure',
+          'in a closed vessel the pressure is computed from what is in it; this pressure is not used (give gases as partial pressures or amounts instead)',
+          node.pressure.start,
+          node.pressure.end,
+        ),
+      );
+    }
+    const volume = this.positive(props.values.get('volume')?.[0], 'the liquid volume');
     if (vessel !== undefined && volume !== undefined && volume >= vessel) {
-      const v = props.get('volume')!;
+      const v = props.values.get('volume')![0];
       this.report(diagnostic('bad-quantity', 'the liquid volume must be less than the vessel volume, leaving room for the gas', v.range.start, v.range.end));
     }
     const amounts: BatchAmount[] = [];
@@ -559,15 +492,35 @@ class Builder {
   }
 }
 
-/** A property's SI value, its line, and the range of the written value (for diagnostics). */
-interface PropertyValue {
-  readonly value: number;
-  readonly node: PropertyNode;
-  readonly range: { readonly start: number; readonly end: number };
-}
+/** Most balance solutions kept across analyses; older ones are dropped first. */
+const BALANCE_CACHE_LIMIT = 5000;
 
-/** Two K lines whose temperatures differ by less than this (K) are for the same temperature. */
-const SAME_TEMPERATURE_K = 1e-6;
+/**
+ * Memoises the balance of a reaction (tallies as written and the minimal balance) by a
+ * canonical key: each term's side, coefficient and formula text (a formula's text fixes its
+ * composition and charge). A reaction is then checked once per session however often it is
+ * re-analysed or repeated in the notebook.
+ */
+export class BalanceCache {
+  private readonly map = new Map<string, NonNullable<ReactionModel['balance']>>();
+
+  balance(terms: readonly ReactionTerm[]): NonNullable<ReactionModel['balance']> {
+    let key = '';
+    for (const t of terms) key += `${t.side === 'left' ? '<' : '>'}${t.coefficient!.toString()} ${t.species!.formula.text}\u0000`;
+    const hit = this.map.get(key);
+    if (hit) return hit;
+    const balanceTerms: BalanceTerm[] = terms.map((t) => ({
+      composition: t.species!.formula.composition,
+      charge: t.species!.formula.charge,
+      side: t.side,
+    }));
+    const tally = tallyBalance(balanceTerms, terms.map((t) => t.coefficient!));
+    const result = { tallies: tally.tallies, balanced: tally.balanced, solution: solveBalance(balanceTerms) };
+    this.map.set(key, result);
+    if (this.map.size > BALANCE_CACHE_LIMIT) this.map.delete(this.map.keys().next().value as string);
+    return result;
+  }
+}
 
 /** Coefficients with more digits than this are typos, not stoichiometry. */
 const MAX_COEFFICIENT_DIGITS = 12;

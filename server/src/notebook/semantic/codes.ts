@@ -27,6 +27,12 @@ export const DIAGNOSTIC_CODES = {
   'unknown-label': { severity: 'error', summary: '`uses` names a reaction label that does not exist' },
   'bad-basis': { severity: 'error', summary: '`basis` or `equiv` that cannot be resolved' },
   'same-species-both-sides': { severity: 'warning', summary: 'the same species on both sides of an equation' },
+  'inconsistent-data': { severity: 'warning', summary: 'thermodynamic data given twice that disagree by more than 1%' },
+  'missing-data': { severity: 'error', summary: 'a batch lacks data it needs to be solved (K, density, liquid volume, vessel, phase)' },
+  'k-extrapolated': { severity: 'warning', summary: 'a K used at another temperature with no ΔH°, taken as constant' },
+  'no-convergence': { severity: 'error', summary: 'the equilibrium solve of a batch did not converge or its inputs are inconsistent' },
+  'pressure-caution': { severity: 'warning', summary: 'a closed vessel whose computed pressure exceeds 1.5 bar' },
+  'unused-pressure': { severity: 'warning', summary: 'a batch pressure written for a closed vessel, where the pressure is computed instead' },
 } as const satisfies Record<string, { severity: Severity; summary: string }>;
 
 export type DiagnosticCode = keyof typeof DIAGNOSTIC_CODES;

@@ -6,7 +6,8 @@ import type { BalanceSolution, ElementTally } from '../../chem/balance';
 import type { Formula } from '../../chem/formula';
 import type { Rational } from '../../chem/rational';
 import type { Dimension } from '../../chem/units';
-import type { BatchNode, PropertyNode, ReactionNode, SpeciesNode, TermNode, Token, AmountNode } from '../syntax/tree';
+import type { FormationData, ReactionThermo } from '../../chem/thermo';
+import type { BatchNode, ReactionNode, SpeciesNode, TermNode, Token, AmountNode } from '../syntax/tree';
 import type { Diagnostic } from './codes';
 
 export type Phase = 'g' | 'l' | 's' | 'aq';
@@ -29,6 +30,8 @@ export interface SpeciesDecl {
   readonly density?: number;
   /** fraction, 0 < purity <= 1 */
   readonly purity?: number;
+  /** Formation data at 298.15 K, for Hess's law. */
+  readonly formation?: FormationData;
 }
 
 /** What a term or amount line refers to, once resolved. */
@@ -49,13 +52,6 @@ export interface ReactionTerm {
   readonly species?: ResolvedSpecies;
 }
 
-export interface EquilibriumConstant {
-  readonly value: number;
-  /** K */
-  readonly temperature: number;
-  readonly node: PropertyNode;
-}
-
 export interface ReactionModel {
   readonly node: ReactionNode;
   /** The written label, or R1, R2, ... by position among the notebook's reactions. */
@@ -72,7 +68,8 @@ export interface ReactionModel {
     readonly balanced: boolean;
     readonly solution: BalanceSolution;
   };
-  readonly constants: readonly EquilibriumConstant[];
+  /** The reaction's own thermodynamic data in SI (undefined when it has none). */
+  readonly thermo?: ReactionThermo;
 }
 
 export interface BatchAmount {

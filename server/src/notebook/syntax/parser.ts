@@ -4,7 +4,7 @@
 // A line it cannot read becomes an error node, and parsing goes on with the
 // next line, so one bad line never hides the problems of the others.
 import {
-  assemble,
+  assemble as assembleTokens,
   isBlank,
   splitLines,
   token,
@@ -30,7 +30,6 @@ import type {
   TermNode,
   Token,
 } from './tree';
-import { forEachToken } from './tree';
 
 /** Lines longer than this are not parsed: almost surely pasted data, and costly to analyse. */
 export const MAX_LINE_LENGTH = 4000;
@@ -69,6 +68,7 @@ export function parse(text: string): ParseResult {
 class Parser {
   private readonly errors: SyntaxError[] = [];
   private readonly errorOffsets = new Set<number>();
+  private readonly errorTokens: Token[] = [];
   private readonly fileChildren: SyntaxElement[] = [];
   private readonly statements: StatementNode[] = [];
   private open: OpenStatement | undefined;
@@ -94,7 +94,7 @@ class Parser {
       children: this.fileChildren,
       statements: this.statements,
     };
-    this.reportStrayErrorTokens(tree);
+    this.reportStrayErrorTokens();
     return { tree, errors: this.errors };
   }
 
@@ -132,12 +132,12 @@ class Parser {
     if (line.breakEnd > line.end) tail.push(token(text, 'newline', line.end, line.breakEnd));
 
     if (cs === ce) {
-      this.pendingTrivia.push(...assemble(text, tail, line.start, line.breakEnd));
+      this.pendingTrivia.push(...this.assemble(tail, line.start, line.breakEnd));
       return;
     }
     if (indentEnd > line.start) {
       const items = this.propertyLine(cs, ce);
-      const children = assemble(text, [...items.children, ...tail], line.start, line.breakEnd);
+      const children = this.assemble([...items.children, ...tail], line.start, line.breakEnd);
       const node = items.build(children, line);
       this.addProperty(node, { start: cs, end: ce });
       return;
@@ -191,7 +191,7 @@ class Parser {
     } else if (!this.hasArrow(cs, ce) && looksLikeMisspelledKeyword(first.text)) {
       const kw = looksLikeMisspelledKeyword(first.text);
       this.error(`unknown statement \`${first.text}\`; did you mean \`${kw}\`?`, first.start, first.end);
-      const children = assemble(this.text, [token(this.text, 'error', cs, ce), ...tail], line.start, line.breakEnd);
+      const children = this.assemble([token(this.text, 'error', cs, ce), ...tail], line.start, line.breakEnd);
       this.startStatement({ kind: 'error', header: children, build: errorStatement, lines: [], properties: [] });
     } else {
       this.reaction(cs, ce, tail, line);
@@ -245,7 +245,7 @@ class Parser {
       } else {
         const split = splitPhase(text, words[0]);
         formula = split.species;
-        formula = { ...formula, kind: 'formula' };
+        formula = token(text, 'formula', formula.start, formula.end);
         items.push(formula);
         if (split.phase) phase = split.phase;
         let rest = words.slice(1);
@@ -265,7 +265,7 @@ class Parser {
         }
       }
     }
-    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    const header = this.assemble([...items, ...tail], line.start, line.breakEnd);
     const keyword = items[0];
     this.startStatement({
       kind: 'species',
@@ -350,7 +350,7 @@ class Parser {
         }
       }
     }
-    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    const header = this.assemble([...items, ...tail], line.start, line.breakEnd);
     this.startStatement({
       kind: 'batch',
       header,
@@ -416,7 +416,7 @@ class Parser {
       items.push(arrow);
     }
     items.push(...left.terms, ...left.pluses, ...right.terms, ...right.pluses);
-    const header = assemble(text, [...items, ...tail], line.start, line.breakEnd);
+    const header = this.assemble([...items, ...tail], line.start, line.breakEnd);
     if (!arrow) {
       this.startStatement({ kind: 'error', header, build: errorStatement, lines: [], properties: [] });
       return;
@@ -524,7 +524,7 @@ class Parser {
       type: 'term',
       start,
       end,
-      children: assemble(text, items, start, end),
+      children: this.assemble(items, start, end),
       coefficient,
       species: split.species,
       phase,
@@ -671,22 +671,27 @@ class Parser {
     const [us, ue] = trimRange(text, numberEnd, e);
     const unit = us < ue ? token(text, 'unit', us, ue) : undefined;
     const items: Token[] = unit ? [number, unit] : [number];
-    return { type: 'quantity', start: s, end: unit ? unit.end : number.end, children: assemble(text, items, s, unit ? unit.end : number.end), number, unit };
+    return { type: 'quantity', start: s, end: unit ? unit.end : number.end, children: this.assemble(items, s, unit ? unit.end : number.end), number, unit };
   }
 
   private errorLine(items: SyntaxElement[], line: Line): ErrorLineNode {
-    const children = assemble(this.text, items, line.start, line.breakEnd);
+    const children = this.assemble(items, line.start, line.breakEnd);
     return { type: 'error-line', start: line.start, end: line.breakEnd, children };
   }
 
+  /** assemble() that also remembers the error tokens it places, for the safety net below. */
+  private assemble(items: readonly SyntaxElement[], from: number, to: number): SyntaxElement[] {
+    const children = assembleTokens(this.text, items, from, to);
+    for (const c of children) if (c.type === 'token' && c.kind === 'error') this.errorTokens.push(c);
+    return children;
+  }
+
   /** Safety net: any error token without a syntax error over it gets a generic one. */
-  private reportStrayErrorTokens(tree: FileNode): void {
-    const stray: Token[] = [];
-    forEachToken(tree, (t) => {
-      if (t.kind === 'error') stray.push(t);
-    });
-    for (const t of stray) {
-      if (this.errors.some((e) => e.start <= t.start && t.start < Math.max(e.end, e.start + 1))) continue;
+  private reportStrayErrorTokens(): void {
+    if (this.errorTokens.length === 0) return;
+    const covered = [...this.errors].sort((a, b) => a.start - b.start);
+    for (const t of this.errorTokens) {
+      if (covered.some((e) => e.start <= t.start && t.start < Math.max(e.end, e.start + 1))) continue;
       this.error(`unexpected \`${t.text.slice(0, 40)}\``, t.start, t.end);
     }
   }

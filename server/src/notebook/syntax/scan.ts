@@ -59,8 +59,28 @@ export function trimRange(text: string, from: number, to: number): [number, numb
   return [from, to];
 }
 
+/**
+ * A token keeps a reference to the source and slices its text on demand: a tree holds
+ * one token per word and space, and most token texts are never read.
+ */
+class SourceToken implements Token {
+  readonly type = 'token' as const;
+  constructor(
+    private readonly source: string,
+    readonly kind: TokenKind,
+    readonly start: number,
+    readonly end: number,
+  ) {}
+  get text(): string {
+    return this.source.slice(this.start, this.end);
+  }
+  toJSON(): Omit<Token, never> {
+    return { type: this.type, kind: this.kind, start: this.start, end: this.end, text: this.text };
+  }
+}
+
 export function token(text: string, kind: TokenKind, start: number, end: number): Token {
-  return { type: 'token', kind, start, end, text: text.slice(start, end) };
+  return new SourceToken(text, kind, start, end);
 }
 
 /**
@@ -69,7 +89,9 @@ export function token(text: string, kind: TokenKind, start: number, end: number)
  * result covers the range exactly.
  */
 export function assemble(text: string, items: readonly SyntaxElement[], from: number, to: number): SyntaxElement[] {
-  const sorted = [...items].sort((a, b) => a.start - b.start);
+  let inOrder = true;
+  for (let i = 1; i < items.length && inOrder; i++) inOrder = items[i - 1].start <= items[i].start;
+  const sorted = inOrder ? items : [...items].sort((a, b) => a.start - b.start);
   const out: SyntaxElement[] = [];
   let pos = from;
   const fill = (until: number): void => {

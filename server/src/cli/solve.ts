@@ -1,0 +1,85 @@
+// `stillpoint solve FILE [--batch NAME] [--json]`: each batch's equilibrium
+// composition from the same analysis the editor shows, as aligned text tables
+// or as JSON for scripts.
+import { readFileSync } from 'node:fs';
+import { createNotebookService } from '../notebook/ide/service';
+import { textTable } from '../notebook/ide/tables';
+import { ESTIMATE_NOTE } from '../notebook/ide/batch-report';
+import type { CliIo } from './commands';
+
+interface JsonBatch {
+  name: string;
+  temperature_K: number | null;
+  pressure_bar: number | null;
+  vessel_L: number | null;
+  converged: boolean;
+  message?: string;
+  species: { name: string; formula: string; phase: string; initial_mol: number; equilibrium_mol: number }[];
+  reactions: { label: string; K: number; extent_mol: number }[];
+}
+
+export function solve(file: string, only: string | undefined, json: boolean, io: CliIo): number {
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch (e) {
+    io.err(`stillpoint: ${file}: cannot read (${e instanceof Error ? e.message : String(e)})`);
+    return 1;
+  }
+  const service = createNotebookService();
+  const analysis = service.analyse(text);
+  const batches = analysis.model.batches.filter((b) => only === undefined || b.name === only);
+  if (only !== undefined && batches.length === 0) {
+    const names = analysis.model.batches.map((b) => `\`${b.name}\``).join(', ');
+    io.err(`stillpoint: ${file} has no batch named \`${only}\`${names ? `; batches: ${names}` : ''}`);
+    return 1;
+  }
+  let failed = analysis.diagnostics.some((d) => d.severity === 'error');
+  const out: JsonBatch[] = [];
+  const human: string[] = [];
+  for (const b of batches) {
+    const result = analysis.results.get(b);
+    const report = service.batchReport(analysis, b);
+    const converged = result?.status === 'converged';
+    if (!converged) failed = true;
+    out.push({
+      name: b.name,
+      temperature_K: b.temperature ?? null,
+      pressure_bar: result && converged ? result.pressure / 1e5 : null,
+      vessel_L: b.vessel !== undefined ? b.vessel * 1000 : null,
+      converged,
+      ...(converged ? {} : { message: report.problem ?? 'not solved' }),
+      species: result
+        ? result.inputs.species.map((s, i) => ({
+            name: s.label,
+            formula: s.species.formula.text,
+            phase: s.phase,
+            initial_mol: result.charged[i],
+            equilibrium_mol: result.equilibrium[i],
+          }))
+        : [],
+      reactions: result
+        ? result.reactions.map((r) => ({ label: r.input.reaction.label, K: Math.exp(r.input.lnK), extent_mol: r.extent }))
+        : [],
+    });
+    human.push(`== ${report.title}`, ...report.conditions.map((c) => `  ${c}`));
+    if (!report.solved) {
+      human.push(`  ${report.problem ?? 'Not solved.'}`, '');
+      continue;
+    }
+    human.push(`  ${ESTIMATE_NOTE}`);
+    for (const c of report.cautions) human.push(`  CAUTION: ${c}`);
+    if (report.species) human.push('', textTable(report.species));
+    if (report.reactions && report.reactions.rows.length > 0) human.push('', textTable(report.reactions));
+    human.push('', ...report.summary.map((x) => `  ${x.replace(/\*\*/g, '').replace(/`/g, '')}`));
+    if (report.assumptions.length > 0) human.push(`  Assumptions: ${report.assumptions.join('; ')}.`);
+    human.push('');
+  }
+  if (json) io.out(JSON.stringify({ file, batches: out }, null, 2));
+  else {
+    io.out(human.join('\n').trimEnd());
+    const errors = analysis.diagnostics.filter((d) => d.severity === 'error');
+    if (errors.length > 0) io.out(`\n${errors.length} error${errors.length === 1 ? '' : 's'} in ${file}; run \`stillpoint check ${file}\` for details.`);
+  }
+  return failed ? 1 : 0;
+}

@@ -1,0 +1,205 @@
+// What a solved batch tells the chemist, as plain data: the initial / change /
+// equilibrium table, each reaction's K at the batch temperature with its
+// source, Q at the start and the direction of the shift, conversion, yields,
+// pressure and gas volume, cautions and assumptions. The hover renders it as
+// Markdown and the CLI as text, so both show the same numbers.
+import { formatQuantity, trim } from '../../chem/units';
+import type { KSource } from '../../chem/thermo';
+import { PHASE_NAMES, type BatchModel } from '../semantic/model';
+import type { BatchResult } from '../semantic/batch-results';
+import type { ReversibleInput } from '../semantic/batch-inputs';
+import { R } from '../../chem/thermo';
+import type { Analysis } from './analysis';
+import type { Table } from './tables';
+
+export interface BatchReport {
+  readonly title: string;
+  readonly conditions: readonly string[];
+  readonly solved: boolean;
+  /** Why there is no result (missing data, failed solve). */
+  readonly problem?: string;
+  readonly species?: Table;
+  readonly reactions?: Table;
+  readonly summary: readonly string[];
+  readonly cautions: readonly string[];
+  readonly assumptions: readonly string[];
+  /** One short line: the headline result (inlay hint, code lens). */
+  readonly headline?: string;
+}
+
+export const ESTIMATE_NOTE = 'Ideal equilibrium estimates, not a process-safety assessment.';
+
+export const ASSUMPTIONS: Readonly<Record<string, string>> = {
+  g: 'gases ideal: a = y·P/P° with P° = 1 bar',
+  l: 'liquids one ideal mixture: a = mole fraction',
+  aq: 'solutes ideal and dilute: a = c/c° with c° = 1 mol/L',
+  solvent: 'water as the solvent has a = 1',
+  s: 'solids pure phases: a = 1 while present',
+};
+
+/** 4 significant figures; exponent form for very small or large values. */
+export function num(x: number): string {
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : x < 0 ? '−∞' : '—';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a < 1e-3 || a >= 1e6) return x.toExponential(3).replace('e+', 'e').replace(/\.?0+e/, 'e');
+  return String(Number(x.toPrecision(4)));
+}
+
+function signed(x: number): string {
+  const s = num(x);
+  return x > 0 ? `+${s}` : s.replace(/^-/, '−');
+}
+
+export function percent(x: number): string {
+  return `${(x * 100).toFixed(x >= 0.9995 || x < 0.0005 ? 2 : 1)} %`;
+}
+
+export function kSourceText(source: ReversibleInput['source']): string {
+  const s = source as KSource;
+  switch (s.kind) {
+    case 'given':
+      return `given (${s.written})`;
+    case 'van-t-hoff':
+      return `van 't Hoff from ${celsius(s.fromT)} (${s.written}, ΔH° = ${trim(s.dH / 1000)} kJ/mol${s.dCp !== undefined ? `, ΔCp° = ${trim(s.dCp)} J/(mol K)` : ''})`;
+    case 'two-point':
+      return `van 't Hoff through K at ${celsius(s.T1)} and ${celsius(s.T2)}`;
+    case 'enthalpy-entropy':
+      return `ΔG° = ΔH° − TΔS°${s.dCp !== undefined ? ' with ΔCp°' : ''}`;
+    case 'hess':
+      return `Hess's law: ${s.detail}`;
+    case 'assumed-constant':
+      return `taken as constant from ${celsius(s.fromT)} (no ΔH°)`;
+  }
+}
+
+export function celsius(T: number): string {
+  return `${trim(T - 273.15)} °C`;
+}
+
+export function batchReport(analysis: Analysis, batch: BatchModel): BatchReport {
+  const title = `batch ${batch.name}`;
+  const conditions: string[] = [];
+  conditions.push(`Temperature: ${batch.temperature !== undefined ? formatQuantity(batch.temperature, 'temperature') : 'not readable'}`);
+  if (batch.vessel !== undefined) {
+    conditions.push(`Closed vessel: ${formatQuantity(batch.vessel, 'volume')}${batch.volume !== undefined ? `, of which ${formatQuantity(batch.volume, 'volume')} liquid` : ''} (constant volume)`);
+  } else {
+    const written = batch.node.pressure ? analysis.text.slice(batch.node.pressure.start, batch.node.pressure.end) : '';
+    conditions.push(
+      `Pressure: ${batch.pressureIsDefault ? '1 atm (default: none written)' : `${written}${written.endsWith(' bar') ? '' : ` (${formatQuantity(batch.pressure, 'pressure')})`}`}, constant`,
+    );
+    if (batch.volume !== undefined) conditions.push(`Liquid volume: ${formatQuantity(batch.volume, 'volume')}`);
+  }
+  const result = analysis.results.get(batch);
+  if (!result) {
+    const own = analysis.diagnostics.filter((d) => d.severity === 'error' && d.start >= batch.node.start && d.start < batch.node.end);
+    return {
+      title,
+      conditions,
+      solved: false,
+      problem: own.length > 0 ? `Not solved: ${own.map((d) => d.message).join('; ')}` : 'Not solved: the batch is incomplete.',
+      summary: [],
+      cautions: [],
+      assumptions: [],
+    };
+  }
+  if (result.status !== 'converged') {
+    return { title, conditions, solved: false, problem: `Not solved: ${result.message ?? 'the solver did not converge'}`, summary: [], cautions: [], assumptions: [] };
+  }
+  return solvedReport(title, conditions, result);
+}
+
+function solvedReport(title: string, conditions: string[], result: BatchResult): BatchReport {
+  const { inputs } = result;
+  const T = inputs.temperature;
+  const hasOneWay = inputs.oneWay.length > 0;
+  const rows: string[][] = [];
+  const phasesPresent = new Set<string>();
+  const gasPressureOf = (n: number): number =>
+    inputs.conditions.kind === 'constant-volume' ? (n * R * T) / inputs.conditions.gasVolume : result.gasMoles > 0 ? (n / result.gasMoles) * result.pressure : 0;
+  inputs.species.forEach((s, i) => {
+    phasesPresent.add(s.solvent ? 'solvent' : s.phase);
+    const eq = result.equilibrium[i];
+    let shown: string;
+    if (s.phase === 'g') shown = `${num(gasPressureOf(eq) / 1e5)} bar`;
+    else if (s.phase === 'aq' && inputs.liquidVolume) shown = `${num(eq / inputs.liquidVolume / 1000)} mol/L`;
+    else shown = `${num(eq * s.species.formula.molarMass)} g`;
+    if ((s.phase === 's' || s.solvent) && result.absent.has(i)) shown = s.charged > 0 || result.afterOneWay[i] > 0 ? 'used up' : 'does not form';
+    const row = [s.label, `${s.solvent ? 'solvent' : s.phase}`, num(result.charged[i])];
+    if (hasOneWay) row.push(num(result.afterOneWay[i]));
+    row.push(signed(eq - result.charged[i]), num(eq), shown);
+    rows.push(row);
+  });
+  const species: Table = {
+    header: ['Species', 'Phase', 'Initial / mol', ...(hasOneWay ? ['After one-way / mol'] : []), 'Change / mol', 'Equilibrium / mol', 'At equilibrium'],
+    align: ['l', 'l', 'r', ...(hasOneWay ? (['r'] as const) : []), 'r', 'r', 'r'],
+    rows,
+  };
+  const reactionRows: string[][] = [];
+  for (const r of inputs.oneWay) {
+    const j = inputs.oneWay.indexOf(r);
+    reactionRows.push([r.reaction.label, 'one-way', '—', 'runs to completion first', '→', num(result.oneWayExtents[j])]);
+  }
+  for (const o of result.reactions) {
+    const K = Math.exp(o.input.lnK);
+    const direction = o.inactive ? 'cannot run' : directionOf(o.lnQ0, o.input.lnK);
+    reactionRows.push([o.input.reaction.label, num(K), kSourceText(o.input.source), Number.isNaN(o.lnQ0) ? '—' : num(Math.exp(o.lnQ0)), direction, num(o.extent)]);
+  }
+  const reactions: Table = {
+    header: ['Reaction', `K at ${celsius(T)}`, 'K from', 'Q at start', 'Shift', 'Extent / mol'],
+    align: ['l', 'r', 'l', 'r', 'l', 'r'],
+    rows: reactionRows,
+  };
+  const summary: string[] = [];
+  let headline: string | undefined;
+  if (inputs.basis !== undefined && result.conversion !== undefined) {
+    const label = inputs.species[inputs.basis].label;
+    summary.push(`Conversion of ${label}: **${percent(result.conversion)}**`);
+    headline = `${percent(result.conversion)} conversion of ${label}`;
+  }
+  for (const y of result.yields) {
+    const label = inputs.species[y.index].label;
+    const start = result.afterOneWay[y.index];
+    const fraction = (y.formed - start) / (y.theoretical - start);
+    summary.push(`Yield of ${label}: ${percent(Math.max(0, fraction))} (${num(y.formed)} of ${num(y.theoretical)} mol theoretical)`);
+    if (!headline) headline = `${percent(Math.max(0, fraction))} yield of ${label}`;
+  }
+  const cautions: string[] = [];
+  if (result.gasMoles > 0) {
+    if (inputs.conditions.kind === 'constant-volume') {
+      summary.push(`Final total pressure: **${num(result.pressure / 1e5)} bar** (${num(result.gasMoles)} mol of gas in ${formatQuantity(inputs.conditions.gasVolume, 'volume')} of gas space)`);
+      if (!headline) headline = `P = ${num(result.pressure / 1e5)} bar`;
+      else headline += `, P = ${num(result.pressure / 1e5)} bar`;
+      if (result.pressure > 1.5e5) {
+        cautions.push(
+          `The closed vessel reaches ${num(result.pressure / 1e5)} bar. Check its rated pressure and relief before running this, and follow local codes and your site's process-safety review.`,
+        );
+      }
+    } else {
+      summary.push(`Gas at equilibrium: ${num(result.gasMoles)} mol, ${num(result.gasVolume * 1000)} L as ideal gas at ${celsius(T)} and ${num(result.pressure / 1e5)} bar`);
+      const gasStart = inputs.species.reduce((sum, s, i) => sum + (s.phase === 'g' ? result.charged[i] : 0), 0);
+      if (result.gasMoles > gasStart * (1 + 1e-9) && gasStart >= 0) {
+        const evolved = result.gasMoles - gasStart;
+        cautions.push(
+          `The step gives off ${num(evolved)} mol of gas (${num(((evolved * R * T) / result.pressure) * 1000)} L at ${celsius(T)}): vent it safely, and size the vent and off-gas handling under your site's process-safety review.`,
+        );
+      }
+    }
+  }
+  result.absent.forEach((i) => {
+    const s = inputs.species[i];
+    summary.push(`${s.label} (${s.solvent ? 'solvent' : PHASE_NAMES[s.phase]}) ${result.charged[i] > 0 || result.afterOneWay[i] > 0 ? 'is used up' : 'does not form'} at equilibrium.`);
+  });
+  const used = [...inputs.oneWay.map((r) => r.reaction.label), ...inputs.reversible.map((r) => r.reaction.label)];
+  summary.push(`Reactions used (${inputs.selection === 'uses' ? 'from `uses`' : 'every reaction that can run from what is charged'}): ${used.map((l) => `\`${l}\``).join(', ') || 'none'}`);
+  const chargedFrom = inputs.species.filter((s) => s.chargedFrom).map((s) => `${s.label}: ${s.chargedFrom}`);
+  if (chargedFrom.length > 0) summary.push(`Amounts converted: ${chargedFrom.join('; ')}`);
+  const assumptions = [...phasesPresent].map((p) => ASSUMPTIONS[p]).filter((a): a is string => a !== undefined);
+  return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline };
+}
+
+function directionOf(lnQ0: number, lnK: number): string {
+  if (Number.isNaN(lnQ0)) return '—';
+  if (Math.abs(lnQ0 - lnK) < 1e-9 * Math.max(1, Math.abs(lnK))) return 'at equilibrium';
+  return lnQ0 < lnK ? '→ forward (Q < K)' : '← backward (Q > K)';
+}

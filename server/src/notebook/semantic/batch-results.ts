@@ -1,0 +1,192 @@
+// Solves a batch: one-way reactions run to completion first (notebook order,
+// limited by their limiting reagent), then the reversible ones go to
+// equilibrium through the shared solver. Solves are memoised by a canonical
+// key of their inputs, so re-analysing after an edit re-solves only the
+// batches the edit touched. Also derives what the chemist reads: conversion,
+// yields, final pressure, and the cautions that go with them.
+import { solveEquilibrium, type EquilibriumProblem, type EquilibriumResult, type SolverPhase } from '../../chem/equilibrium';
+import { diagnostic, type Diagnostic } from './codes';
+import type { BatchModel } from './model';
+import type { BatchInputs, ReversibleInput } from './batch-inputs';
+
+/** A closed vessel above this pressure (Pa) gets a caution (1.5 bar). */
+export const PRESSURE_CAUTION_PA = 1.5e5;
+
+export interface ReactionOutcome {
+  readonly input: ReversibleInput;
+  /** mol of reaction, from the composition after one-way steps. */
+  readonly extent: number;
+  readonly lnQ0: number;
+  readonly lnQ: number;
+  /** Could not run at all from what is present. */
+  readonly inactive: boolean;
+}
+
+export interface BatchResult {
+  readonly inputs: BatchInputs;
+  readonly status: EquilibriumResult['status'];
+  readonly message?: string;
+  /** mol, per species: charged, after one-way reactions, at equilibrium. */
+  readonly charged: readonly number[];
+  readonly afterOneWay: readonly number[];
+  readonly equilibrium: readonly number[];
+  readonly activities: readonly number[];
+  readonly oneWayExtents: readonly number[];
+  readonly reactions: readonly ReactionOutcome[];
+  /** Pa: the batch pressure, or the computed total pressure of a closed vessel. */
+  readonly pressure: number;
+  readonly gasMoles: number;
+  /** m^3 */
+  readonly gasVolume: number;
+  readonly absent: ReadonlySet<number>;
+  /** Fraction of the basis species consumed, when there is a basis that is consumed. */
+  readonly conversion?: number;
+  /** For each product of a used reaction: amount formed and the theoretical amount. */
+  readonly yields: readonly { readonly index: number; readonly formed: number; readonly theoretical: number }[];
+}
+
+const SOLVER_PHASE: Readonly<Record<string, SolverPhase>> = { g: 'g', l: 'l', s: 's', aq: 'aq' };
+
+/** Most solves kept; older ones are dropped first. */
+const SOLVE_CACHE_LIMIT = 5000;
+
+/** Memoises solver results by a canonical key of the problem (plain data in, plain data out). */
+export class SolveCache {
+  private readonly map = new Map<string, EquilibriumResult>();
+  hits = 0;
+  misses = 0;
+
+  solve(problem: EquilibriumProblem): EquilibriumResult {
+    const key = JSON.stringify(problem);
+    const hit = this.map.get(key);
+    if (hit) {
+      this.hits++;
+      this.map.delete(key);
+      this.map.set(key, hit);
+      return hit;
+    }
+    this.misses++;
+    const result = solveEquilibrium(problem);
+    this.map.set(key, result);
+    if (this.map.size > SOLVE_CACHE_LIMIT) this.map.delete(this.map.keys().next().value as string);
+    return result;
+  }
+}
+
+export function solveBatch(inputs: BatchInputs, cache: SolveCache): BatchResult {
+  const count = inputs.species.length;
+  const charged = inputs.species.map((s) => s.charged);
+  const n = [...charged];
+  // One-way reactions: to completion, in notebook order, limited by the limiting reagent.
+  const oneWayExtents: number[] = [];
+  for (const r of inputs.oneWay) {
+    let extent = Infinity;
+    let limiting = -1;
+    r.nu.forEach((v, i) => {
+      if (v < 0 && n[i] / -v < extent) {
+        extent = n[i] / -v;
+        limiting = i;
+      }
+    });
+    if (!Number.isFinite(extent)) extent = 0;
+    for (let i = 0; i < count; i++) n[i] += r.nu[i] * extent;
+    if (limiting >= 0) n[limiting] = 0; // exactly used up, no rounding residue
+    for (let i = 0; i < count; i++) if (n[i] < 0) n[i] = 0;
+    oneWayExtents.push(extent);
+  }
+  const afterOneWay = [...n];
+  const problem: EquilibriumProblem = {
+    species: inputs.species.map((s, i) => ({ id: s.id, phase: s.solvent ? 'solvent' : SOLVER_PHASE[s.phase], n0: afterOneWay[i] })),
+    reactions: inputs.reversible.map((r) => ({ label: r.reaction.label, nu: r.nu, lnK: r.lnK })),
+    conditions:
+      inputs.conditions.kind === 'constant-pressure'
+        ? { kind: 'constant-pressure', T: inputs.temperature, P: inputs.conditions.P }
+        : { kind: 'constant-volume', T: inputs.temperature, gasVolume: inputs.conditions.gasVolume },
+    liquidVolume: inputs.liquidVolume,
+  };
+  const result = cache.solve(problem);
+  const equilibrium = result.status === 'converged' ? [...result.n] : afterOneWay;
+  const reactions: ReactionOutcome[] = inputs.reversible.map((input, j) => ({
+    input,
+    extent: result.extents[j] ?? 0,
+    lnQ0: result.lnQ0[j] ?? NaN,
+    lnQ: result.lnQ[j] ?? NaN,
+    inactive: result.inactiveReactions.includes(j),
+  }));
+  let conversion: number | undefined;
+  if (inputs.basis !== undefined && charged[inputs.basis] > 0) {
+    const consumed = charged[inputs.basis] - equilibrium[inputs.basis];
+    if (consumed > 0 || inputs.reversible.some((r) => r.nu[inputs.basis!] < 0) || inputs.oneWay.some((r) => r.nu[inputs.basis!] < 0)) {
+      conversion = consumed / charged[inputs.basis];
+    }
+  }
+  return {
+    inputs,
+    status: result.status,
+    message: result.message,
+    charged,
+    afterOneWay,
+    equilibrium,
+    activities: result.activities,
+    oneWayExtents,
+    reactions,
+    pressure: result.pressure,
+    gasMoles: result.gasMoles,
+    gasVolume: result.gasVolume,
+    absent: new Set(result.absentPhases),
+    conversion,
+    yields: yields(inputs, afterOneWay, equilibrium),
+  };
+}
+
+/**
+ * Yield of each product against its theoretical amount: for every reversible reaction
+ * that forms it, the amount it would reach if that reaction went to completion from the
+ * composition after the one-way steps; the largest of these is the theoretical amount.
+ */
+function yields(inputs: BatchInputs, start: readonly number[], end: readonly number[]): BatchResult['yields'] {
+  const out: { index: number; formed: number; theoretical: number }[] = [];
+  for (let i = 0; i < inputs.species.length; i++) {
+    let theoretical = 0;
+    for (const r of inputs.reversible) {
+      if (r.nu[i] <= 0) continue;
+      let extent = Infinity;
+      r.nu.forEach((v, k) => {
+        if (v < 0) extent = Math.min(extent, start[k] / -v);
+      });
+      if (Number.isFinite(extent)) theoretical = Math.max(theoretical, start[i] + r.nu[i] * extent);
+    }
+    if (theoretical > start[i]) out.push({ index: i, formed: end[i], theoretical });
+  }
+  return out;
+}
+
+/** Diagnostics a solved batch earns: a failed solve, and the closed-vessel pressure caution. */
+export function resultDiagnostics(batch: BatchModel, result: BatchResult): Diagnostic[] {
+  const out: Diagnostic[] = [];
+  const header = batch.node.name ?? batch.node.keyword;
+  if (result.status !== 'converged') {
+    out.push(
+      diagnostic(
+        'no-convergence',
+        `batch \`${batch.name}\` could not be solved: ${result.message ?? 'the solver did not converge'}`,
+        header.start,
+        header.end,
+      ),
+    );
+    return out;
+  }
+  if (result.inputs.conditions.kind === 'constant-volume' && result.pressure > PRESSURE_CAUTION_PA) {
+    const vesselLine = batch.node.properties.find((p) => p.type === 'property' && p.keyText === 'vessel');
+    const where = vesselLine && vesselLine.type === 'property' ? (vesselLine.value ?? vesselLine) : header;
+    out.push(
+      diagnostic(
+        'pressure-caution',
+        `the closed vessel reaches ${Number((result.pressure / 1e5).toPrecision(4))} bar at equilibrium (ideal-gas estimate). Check the vessel's rated pressure and its relief before running this; follow local codes and your site's process-safety review.`,
+        where.start,
+        where.end,
+      ),
+    );
+  }
+  return out;
+}
