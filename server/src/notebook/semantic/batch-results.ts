@@ -66,10 +66,39 @@ export class SolveCache {
       return hit;
     }
     this.misses++;
-    const result = solveEquilibrium(problem);
+    const result = safeSolve(problem);
     this.map.set(key, result);
     if (this.map.size > SOLVE_CACHE_LIMIT) this.map.delete(this.map.keys().next().value as string);
     return result;
+  }
+}
+
+/**
+ * The solver does not throw on any input; should a defect make it throw anyway, that batch is
+ * reported as not solved (with the reason) and the rest of the notebook is still analysed.
+ */
+function safeSolve(problem: EquilibriumProblem): EquilibriumResult {
+  try {
+    return solveEquilibrium(problem);
+  } catch (e) {
+    const S = problem.species.length;
+    const R = problem.reactions.length;
+    return {
+      status: 'failed',
+      message: `internal solver error (${e instanceof Error ? e.message : String(e)}); please report this notebook`,
+      n: problem.species.map((s) => s.n0),
+      extents: new Array<number>(R).fill(0),
+      activities: new Array<number>(S).fill(0),
+      lnQ: new Array<number>(R).fill(0),
+      lnQ0: new Array<number>(R).fill(0),
+      pressure: 0,
+      gasMoles: 0,
+      gasVolume: 0,
+      absentPhases: [],
+      inactiveReactions: [],
+      iterations: 0,
+      method: 'none',
+    };
   }
 }
 
