@@ -111,11 +111,26 @@ export class LspTestClient {
     });
   }
 
-  async initialize(initializationOptions: Json = { diagnosticsDelayMs: 0 }): Promise<Json> {
+  /**
+   * `pull: true` declares pull-diagnostics support (LSP 3.17) as VS Code does; `folders` are
+   * workspace folder URIs for workspace symbols.
+   */
+  async initialize(
+    initializationOptions: Json = { diagnosticsDelayMs: 0 },
+    options: { pull?: boolean; folders?: string[] } = {},
+  ): Promise<Json> {
     const result = await this.request('initialize', {
       processId: process.pid,
       rootUri: null,
-      capabilities: { textDocument: { publishDiagnostics: {}, hover: { contentFormat: ['markdown'] }, codeAction: {} } },
+      workspaceFolders: options.folders ? options.folders.map((uri, i) => ({ uri, name: `folder-${i}` })) : null,
+      capabilities: {
+        textDocument: {
+          publishDiagnostics: {},
+          hover: { contentFormat: ['markdown'] },
+          codeAction: {},
+          ...(options.pull ? { diagnostic: { dynamicRegistration: false } } : {}),
+        },
+      },
       initializationOptions,
     });
     this.notify('initialized', {});

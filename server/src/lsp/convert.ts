@@ -10,9 +10,12 @@ import {
   SymbolKind,
   type Hover as LspHover,
   type InlayHint as LspInlayHint,
+  type SemanticTokens,
+  type SymbolInformation,
   type Range,
 } from 'vscode-languageserver/node';
-import type { Analysis, CodeAction, Diagnostic, Hover, InlayHint, NotebookSymbol, Severity } from '../notebook/ide/service';
+import type { Analysis, CodeAction, Diagnostic, Hover, InlayHint, NotebookSymbol, SemanticToken, Severity } from '../notebook/ide/service';
+import { SEMANTIC_TOKEN_TYPES } from '../notebook/ide/semantic-tokens';
 
 export const DIAGNOSTIC_SOURCE = 'stillpoint';
 
@@ -73,4 +76,24 @@ export function toDocumentSymbol(analysis: Analysis, s: NotebookSymbol): Documen
 
 export function toInlayHint(analysis: Analysis, h: InlayHint): LspInlayHint {
   return { position: analysis.lines.position(h.offset), label: h.label, paddingLeft: true, tooltip: h.tooltip };
+}
+
+export function toSymbolInformation(analysis: Analysis, uri: string, s: NotebookSymbol): SymbolInformation {
+  return { name: s.name, kind: SYMBOL_KIND[s.kind], location: { uri, range: toRange(analysis, s.selectionStart, s.selectionEnd) }, containerName: s.detail };
+}
+
+/** Relative (delta) encoding of semantic tokens, as the protocol wants; tokens never span lines. */
+export function toSemanticTokens(analysis: Analysis, tokens: readonly SemanticToken[]): SemanticTokens {
+  const data: number[] = [];
+  let prevLine = 0;
+  let prevChar = 0;
+  for (const t of [...tokens].sort((a, b) => a.start - b.start)) {
+    const p = analysis.lines.position(t.start);
+    const deltaLine = p.line - prevLine;
+    const deltaChar = deltaLine === 0 ? p.character - prevChar : p.character;
+    data.push(deltaLine, deltaChar, t.length, SEMANTIC_TOKEN_TYPES.indexOf(t.type), t.declaration ? 1 : 0);
+    prevLine = p.line;
+    prevChar = p.character;
+  }
+  return { data };
 }

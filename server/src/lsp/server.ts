@@ -3,13 +3,21 @@
 // runSafe and the per-version analysis cache.
 import {
   CodeActionKind,
+  DocumentDiagnosticReportKind,
+  DocumentHighlightKind,
+  ResponseError,
+  ErrorCodes,
   TextDocumentSyncKind,
   type Connection,
   type InitializeParams,
   type InitializeResult,
+  type SymbolInformation,
+  type WorkspaceEdit,
 } from 'vscode-languageserver/node';
+import { SEMANTIC_TOKEN_MODIFIERS, SEMANTIC_TOKEN_TYPES } from '../notebook/ide/semantic-tokens';
+import { WorkspaceIndex } from './workspace';
 import { createNotebookService } from '../notebook/ide/service';
-import { toCodeAction, toDiagnostic, toDocumentSymbol, toHover, toInlayHint } from './convert';
+import { toCodeAction, toDiagnostic, toDocumentSymbol, toHover, toInlayHint, toRange, toSemanticTokens, toSymbolInformation } from './convert';
 import { DocumentStore } from './documents';
 import { runSafe } from './safe';
 
@@ -21,10 +29,15 @@ export function startServer(connection: Connection): void {
   const store = new DocumentStore(service);
   const timers = new Map<string, ReturnType<typeof setTimeout>>();
   let delayMs = DEFAULT_DIAGNOSTICS_DELAY_MS;
+  /** Clients that pull diagnostics (LSP 3.17) get them on request; the others get them published. */
+  let pullDiagnostics = false;
+  const workspace = new WorkspaceIndex(service, (uri) => (store.documents.get(uri) ? store.analysis(uri) : undefined));
 
   connection.onInitialize((params: InitializeParams): InitializeResult => {
     const options = params.initializationOptions as { diagnosticsDelayMs?: unknown } | undefined;
     if (typeof options?.diagnosticsDelayMs === 'number' && options.diagnosticsDelayMs >= 0) delayMs = options.diagnosticsDelayMs;
+    pullDiagnostics = params.capabilities.textDocument?.diagnostic !== undefined;
+    workspace.setRoots([...(params.workspaceFolders ?? []).map((f) => f.uri), ...(params.workspaceFolders ? [] : params.rootUri ? [params.rootUri] : [])]);
     return {
       capabilities: {
         textDocumentSync: { openClose: true, change: TextDocumentSyncKind.Incremental, save: { includeText: false } },
@@ -32,6 +45,17 @@ export function startServer(connection: Connection): void {
         codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix] },
         documentSymbolProvider: true,
         inlayHintProvider: true,
+        definitionProvider: true,
+        referencesProvider: true,
+        documentHighlightProvider: true,
+        renameProvider: { prepareProvider: true },
+        foldingRangeProvider: true,
+        workspaceSymbolProvider: true,
+        semanticTokensProvider: {
+          legend: { tokenTypes: [...SEMANTIC_TOKEN_TYPES], tokenModifiers: [...SEMANTIC_TOKEN_MODIFIERS] },
+          full: true,
+        },
+        ...(pullDiagnostics ? { diagnosticProvider: { interFileDependencies: false, workspaceDiagnostics: false } } : {}),
       },
       serverInfo: { name: 'stillpoint', version: '0.1.0' },
     };
@@ -39,6 +63,7 @@ export function startServer(connection: Connection): void {
 
   const publish = (uri: string): void => {
     timers.delete(uri);
+    if (pullDiagnostics) return;
     runSafe(connection, 'diagnostics', undefined, () => {
       const analysis = store.analysis(uri);
       if (!analysis) return;
@@ -97,6 +122,86 @@ export function startServer(connection: Connection): void {
       const end = analysis.lines.offset(params.range.end);
       return service.inlayHints(analysis, start, end).map((h) => toInlayHint(analysis, h));
     }),
+  );
+
+  connection.languages.diagnostics.on((params) =>
+    runSafe(connection, 'diagnostics', { kind: DocumentDiagnosticReportKind.Full, items: [] }, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      return {
+        kind: DocumentDiagnosticReportKind.Full,
+        items: analysis ? analysis.diagnostics.map((d) => toDiagnostic(analysis, d)) : [],
+      };
+    }),
+  );
+
+  connection.onDefinition((params) =>
+    runSafe(connection, 'definition', null, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return null;
+      const d = service.definition(analysis, analysis.lines.offset(params.position));
+      return d ? { uri: params.textDocument.uri, range: toRange(analysis, d.start, d.end) } : null;
+    }),
+  );
+
+  connection.onReferences((params) =>
+    runSafe(connection, 'references', [], () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return [];
+      return service
+        .references(analysis, analysis.lines.offset(params.position), params.context.includeDeclaration)
+        .map((r) => ({ uri: params.textDocument.uri, range: toRange(analysis, r.start, r.end) }));
+    }),
+  );
+
+  connection.onDocumentHighlight((params) =>
+    runSafe(connection, 'highlights', [], () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return [];
+      return service.documentHighlights(analysis, analysis.lines.offset(params.position)).map((h) => ({
+        range: toRange(analysis, h.start, h.end),
+        kind: h.write ? DocumentHighlightKind.Write : DocumentHighlightKind.Read,
+      }));
+    }),
+  );
+
+  connection.onPrepareRename((params) =>
+    runSafe(connection, 'prepare rename', null, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return null;
+      const r = service.prepareRename(analysis, analysis.lines.offset(params.position));
+      return r ? { range: toRange(analysis, r.start, r.end), placeholder: r.placeholder } : null;
+    }),
+  );
+
+  connection.onRenameRequest((params) => {
+    const result = runSafe(connection, 'rename', undefined as WorkspaceEdit | ResponseError<void> | undefined, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return undefined;
+      const r = service.rename(analysis, analysis.lines.offset(params.position), params.newName);
+      if (!r.ok) return new ResponseError<void>(ErrorCodes.InvalidRequest, r.message);
+      return { changes: { [params.textDocument.uri]: r.edits.map((e) => ({ range: toRange(analysis, e.start, e.end), newText: e.newText })) } };
+    });
+    return result ?? null;
+  });
+
+  connection.onFoldingRanges((params) =>
+    runSafe(connection, 'folding', [], () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      return analysis ? service.foldingRanges(analysis) : [];
+    }),
+  );
+
+  connection.languages.semanticTokens.on((params) =>
+    runSafe(connection, 'semantic tokens', { data: [] }, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      return analysis ? toSemanticTokens(analysis, service.semanticTokens(analysis)) : { data: [] };
+    }),
+  );
+
+  connection.onWorkspaceSymbol((params) =>
+    runSafe(connection, 'workspace symbols', [] as SymbolInformation[], () =>
+      workspace.symbols(params.query).flatMap((f) => f.symbols.map((s) => toSymbolInformation(f.analysis, f.uri, s))),
+    ),
   );
 
   store.documents.listen(connection);

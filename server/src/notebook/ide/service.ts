@@ -7,6 +7,9 @@ import { hover } from './hover';
 import { documentSymbols } from './symbols';
 import { inlayHints } from './inlay-hints';
 import { batchReport } from './batch-report';
+import { definition, documentHighlights, prepareRename, references, rename } from './references';
+import { foldingRanges } from './folding';
+import { semanticTokens } from './semantic-tokens';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -14,6 +17,9 @@ export type { Hover } from './hover';
 export type { NotebookSymbol } from './symbols';
 export type { InlayHint } from './inlay-hints';
 export type { BatchReport } from './batch-report';
+export type { Highlight, Range, RenameResult } from './references';
+export type { FoldingRange } from './folding';
+export type { SemanticToken } from './semantic-tokens';
 export type { Diagnostic, Fix, TextEdit, Severity, DiagnosticCode } from '../semantic/codes';
 
 export interface NotebookService {
@@ -23,9 +29,16 @@ export interface NotebookService {
   documentSymbols: typeof documentSymbols;
   inlayHints: typeof inlayHints;
   batchReport: typeof batchReport;
+  definition: typeof definition;
+  references: typeof references;
+  documentHighlights: typeof documentHighlights;
+  prepareRename: typeof prepareRename;
+  rename: typeof rename;
+  foldingRanges: typeof foldingRanges;
+  semanticTokens: typeof semanticTokens;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens };
 }

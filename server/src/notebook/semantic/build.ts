@@ -6,7 +6,7 @@ import { solveBalance, tallyBalance, type BalanceTerm } from '../../chem/balance
 import { parseFormula, type Formula, type FormulaProblem } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
 import { forEachToken, type FileNode, type SyntaxError, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
-import { BATCH_KEYWORDS, IDENTIFIER, STATEMENT_KEYWORDS } from '../syntax/parser';
+import { IDENTIFIER, RESERVED_WORDS } from '../syntax/parser';
 import { diagnostic, type Diagnostic, type Fix } from './codes';
 import { balanceDiagnostics } from './balance-check';
 import {
@@ -25,7 +25,6 @@ import { readPropertyLines, readQuantity, type PropertyValue } from './propertie
 import { reactionThermo } from './reaction-data';
 import type { FormationData } from '../../chem/thermo';
 
-const RESERVED_NAMES: ReadonlySet<string> = new Set<string>([...STATEMENT_KEYWORDS, ...BATCH_KEYWORDS, 'at']);
 
 /**
  * `syntaxErrors` are the parser's errors: a reaction whose line has one is not balance-checked,
@@ -103,7 +102,7 @@ class Builder {
     const one = (key: string): PropertyValue | undefined => values.get(key)?.[0];
     if (!nameToken) return;
     const name = nameToken.text;
-    if (RESERVED_NAMES.has(name)) {
+    if (RESERVED_WORDS.has(name)) {
       this.report(diagnostic('reserved-name', `\`${name}\` is a keyword of the notebook; choose another species name`, nameToken.start, nameToken.end));
       return;
     }

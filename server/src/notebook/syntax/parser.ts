@@ -39,6 +39,8 @@ const BYTE_ORDER_MARK = 0xfeff;
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
 export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses'] as const;
+/** Words that cannot be species names: they would read as statement or batch keywords. */
+export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses']);
 /** Property keys whose value is a comma-separated list of names rather than a quantity. */
 export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
 
