@@ -330,8 +330,24 @@ export function kAt(r: ReactionModel, model: NotebookModel, T: number): { lnK: n
   if (!hess) return undefined;
   const k = lnKAt(hess, T);
   if (!k) return undefined;
-  const how = k.source.kind === 'given' ? 'ΔrG° = Σν·ΔfG° at 298.15 K' : k.source.kind === 'enthalpy-entropy' ? 'ΔrH° and ΔrS° from ΔfH° and S°' : 'Σν·ΔfG° moved with ΔrH° (van \'t Hoff)';
   void model;
+  let how: string;
+  switch (k.source.kind) {
+    case 'given':
+      how = 'ΔrG° = Σν·ΔfG° at 298.15 K';
+      break;
+    case 'van-t-hoff':
+      how = "Σν·ΔfG° at 298.15 K moved with ΔrH° = Σν·ΔfH° (van 't Hoff)";
+      break;
+    case 'enthalpy-entropy':
+      how = 'ΔrH° and ΔrS° from ΔfH° and S°';
+      break;
+    case 'assumed-constant':
+      how = 'Σν·ΔfG° at 298.15 K, taken as constant (no ΔfH° for a temperature correction)';
+      break;
+    default:
+      how = 'formation data';
+  }
   return { lnK: k.lnK, source: { kind: 'hess', detail: how }, warnings: k.warnings };
 }
 
