@@ -108,6 +108,19 @@ describe('navigation', () => {
   });
 });
 
+describe('completion over the protocol', () => {
+  it('offers reaction labels after `uses`, each with a detail and a text edit over the partial word', async () => {
+    client = await open();
+    const list = await client.request<{ items: { label: string; detail: string; kind: number; textEdit: LspTextEdit }[] }>('textDocument/completion', {
+      textDocument: { uri: URI },
+      position: { line: 9, character: 9 },
+    });
+    const item = list.items.find((i) => i.label === 'esterify');
+    expect(item?.detail).toContain('reversible');
+    expect(item?.textEdit.range).toEqual({ start: { line: 9, character: 7 }, end: { line: 9, character: 9 } });
+  });
+});
+
 describe('presentation', () => {
   it('folds statements with property lines', async () => {
     client = await open();

@@ -3,6 +3,8 @@
 import {
   CodeAction as LspCodeAction,
   CodeActionKind,
+  CompletionItemKind,
+  type CompletionList,
   Diagnostic as LspDiagnostic,
   DiagnosticSeverity,
   DocumentSymbol,
@@ -14,7 +16,7 @@ import {
   type SymbolInformation,
   type Range,
 } from 'vscode-languageserver/node';
-import type { Analysis, CodeAction, Diagnostic, Hover, InlayHint, NotebookSymbol, SemanticToken, Severity } from '../notebook/ide/service';
+import type { Analysis, CodeAction, CompletionResult, Diagnostic, Hover, InlayHint, NotebookSymbol, SemanticToken, Severity } from '../notebook/ide/service';
 import { SEMANTIC_TOKEN_TYPES } from '../notebook/ide/semantic-tokens';
 
 export const DIAGNOSTIC_SOURCE = 'stillpoint';
@@ -96,4 +98,28 @@ export function toSemanticTokens(analysis: Analysis, tokens: readonly SemanticTo
     prevChar = p.character;
   }
   return { data };
+}
+
+const COMPLETION_KIND: Readonly<Record<CompletionResult['items'][number]['kind'], CompletionItemKind>> = {
+  keyword: CompletionItemKind.Keyword,
+  species: CompletionItemKind.Variable,
+  label: CompletionItemKind.Event,
+  batch: CompletionItemKind.Struct,
+  property: CompletionItemKind.Property,
+  unit: CompletionItemKind.Unit,
+  element: CompletionItemKind.Constant,
+};
+
+export function toCompletionList(analysis: Analysis, r: CompletionResult): CompletionList {
+  const range = toRange(analysis, r.start, r.end);
+  return {
+    isIncomplete: false,
+    items: r.items.map((item, i) => ({
+      label: item.label,
+      kind: COMPLETION_KIND[item.kind],
+      detail: item.detail,
+      sortText: String(i).padStart(5, '0'),
+      textEdit: { range, newText: item.insertText ?? item.label },
+    })),
+  };
 }

@@ -17,7 +17,7 @@ import {
 import { SEMANTIC_TOKEN_MODIFIERS, SEMANTIC_TOKEN_TYPES } from '../notebook/ide/semantic-tokens';
 import { WorkspaceIndex } from './workspace';
 import { createNotebookService } from '../notebook/ide/service';
-import { toCodeAction, toDiagnostic, toDocumentSymbol, toHover, toInlayHint, toRange, toSemanticTokens, toSymbolInformation } from './convert';
+import { toCodeAction, toCompletionList, toDiagnostic, toDocumentSymbol, toHover, toInlayHint, toRange, toSemanticTokens, toSymbolInformation } from './convert';
 import { DocumentStore } from './documents';
 import { runSafe } from './safe';
 
@@ -45,6 +45,7 @@ export function startServer(connection: Connection): void {
         codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix] },
         documentSymbolProvider: true,
         inlayHintProvider: true,
+        completionProvider: { triggerCharacters: [' '] },
         definitionProvider: true,
         referencesProvider: true,
         documentHighlightProvider: true,
@@ -131,6 +132,14 @@ export function startServer(connection: Connection): void {
         kind: DocumentDiagnosticReportKind.Full,
         items: analysis ? analysis.diagnostics.map((d) => toDiagnostic(analysis, d)) : [],
       };
+    }),
+  );
+
+  connection.onCompletion((params) =>
+    runSafe(connection, 'completion', null, () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return null;
+      return toCompletionList(analysis, service.completions(analysis, analysis.lines.offset(params.position)));
     }),
   );
 

@@ -10,6 +10,7 @@ import { batchReport } from './batch-report';
 import { definition, documentHighlights, prepareRename, references, rename } from './references';
 import { foldingRanges } from './folding';
 import { semanticTokens } from './semantic-tokens';
+import { completions } from './completion';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -20,6 +21,7 @@ export type { BatchReport } from './batch-report';
 export type { Highlight, Range, RenameResult } from './references';
 export type { FoldingRange } from './folding';
 export type { SemanticToken } from './semantic-tokens';
+export type { CompletionItem, CompletionResult } from './completion';
 export type { Diagnostic, Fix, TextEdit, Severity, DiagnosticCode } from '../semantic/codes';
 
 export interface NotebookService {
@@ -36,9 +38,10 @@ export interface NotebookService {
   rename: typeof rename;
   foldingRanges: typeof foldingRanges;
   semanticTokens: typeof semanticTokens;
+  completions: typeof completions;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions };
 }
