@@ -46,6 +46,8 @@ export function startServer(connection: Connection): void {
         documentSymbolProvider: true,
         inlayHintProvider: true,
         completionProvider: { triggerCharacters: [' '] },
+        documentFormattingProvider: true,
+        documentRangeFormattingProvider: true,
         definitionProvider: true,
         referencesProvider: true,
         documentHighlightProvider: true,
@@ -142,6 +144,17 @@ export function startServer(connection: Connection): void {
       return toCompletionList(analysis, service.completions(analysis, analysis.lines.offset(params.position)));
     }),
   );
+
+  const formatEdits = (uri: string, range?: { start: { line: number; character: number }; end: { line: number; character: number } }) =>
+    runSafe(connection, 'formatting', [], () => {
+      const analysis = store.analysis(uri);
+      if (!analysis) return [];
+      const start = range ? analysis.lines.offset(range.start) : 0;
+      const end = range ? analysis.lines.offset(range.end) : analysis.text.length;
+      return service.formatting(analysis, start, end).map((e) => ({ range: toRange(analysis, e.start, e.end), newText: e.newText }));
+    });
+  connection.onDocumentFormatting((params) => formatEdits(params.textDocument.uri));
+  connection.onDocumentRangeFormatting((params) => formatEdits(params.textDocument.uri, params.range));
 
   connection.onDefinition((params) =>
     runSafe(connection, 'definition', null, () => {

@@ -93,6 +93,12 @@ export interface ExtentState {
   readonly n: Float64Array;
   readonly xi: Float64Array;
   readonly held: Uint8Array;
+  /**
+   * Per mole-fraction group (GAS_GROUP, LIQUID_GROUP): 1 while the whole phase is held absent
+   * (every member exactly 0 and held, no phantom). Its members are never released by the
+   * multiplier test; whether the phase forms is decided by the tangent-plane test (solve.ts).
+   */
+  readonly absent: Uint8Array;
   iterations: number;
 }
 
@@ -127,7 +133,7 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
     for (let k = 0; k < c.rho; k++) xi[k] += p.basisCoefficients[r * c.rho + k] * eps;
   }
   for (let j = 0; j < c.m; j++) if (n[j] < 0) n[j] = 0;
-  return { n, xi, held: new Uint8Array(c.m), iterations: 0 };
+  return { n, xi, held: new Uint8Array(c.m), absent: new Uint8Array(2), iterations: 0 };
 }
 
 /**
@@ -453,7 +459,11 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     const mix = c.mixtureIndex;
     const mm = mix.length;
     const sw = ws.weighted;
-    for (let jj = 0; jj < mm; jj++) ws.rootWeight[jj] = 1 / Math.sqrt(n[mix[jj]]);
+    // A member of an absent phase (held at exactly 0) has a zero column in every direction: weight 0, not 1/0.
+    for (let jj = 0; jj < mm; jj++) {
+      const amount = n[mix[jj]];
+      ws.rootWeight[jj] = amount > 0 ? 1 / Math.sqrt(amount) : 0;
+    }
     for (let a = 0; a < k; a++) {
       gs[2 * a] = 0;
       gs[2 * a + 1] = 0;
@@ -508,7 +518,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     }
    
     if (largestStep <= STEP_TOLERANCE || (!strict && !(decrement > DECREMENT_TOLERANCE * c.total))) {
-      const release = negativeMultiplier(c, held, ws.logA, ws.g, locked);
+      const release = negativeMultiplier(c, held, ws.logA, ws.g, locked, st.absent);
       if (release < 0) return { ok: true, directions: dirs };
       held[release] = FREE;
       promoteImplied(c, held);
@@ -591,9 +601,12 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
  * Lagrange multipliers of the held phases at a subspace optimum: g = Aᵀλ, with A the
  * rows (ν·ξ)_j of the held species (least squares through AAᵀ). λ_j < 0 means forming
  * phase j lowers G. Returns the species with the most negative multiplier (not the
- * locked one), or -1 when none is below −MULTIPLIER_TOLERANCE.
+ * locked one, nor a member of a phase held absent), or -1 when none is below
+ * −MULTIPLIER_TOLERANCE. A held mixture species (a member of an absent phase) has no ln a;
+ * its pure-phase value is used instead, which only shifts its own multiplier (its row is in
+ * A), not those of the pure phases.
  */
-export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array, g: Float64Array, locked: number): number {
+export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array, g: Float64Array, locked: number, absent?: Uint8Array): number {
   const { m, rho } = c;
   const rows: number[] = [];
   for (let j = 0; j < m; j++) if (held[j] === HELD) rows.push(j);
@@ -603,7 +616,7 @@ export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array
     let sum = -c.lnK[r];
     for (let j = 0; j < m; j++) {
       const v = c.nu[r * m + j];
-      if (v !== 0) sum += v * L[j];
+      if (v !== 0) sum += v * (held[j] !== FREE && c.mixture[j] ? c.offset[j] : L[j]);
     }
     g[r] = sum;
   }
@@ -626,6 +639,8 @@ export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array
   let min = -MULTIPLIER_TOLERANCE;
   for (let x = 0; x < w; x++) {
     if (rows[x] === locked) continue;
+    const group = c.group[rows[x]];
+    if (absent !== undefined && group >= 0 && absent[group]) continue;
     if (rhs[x] < min) {
       min = rhs[x];
       worst = rows[x];

@@ -11,6 +11,7 @@ import { definition, documentHighlights, prepareRename, references, rename } fro
 import { foldingRanges } from './folding';
 import { semanticTokens } from './semantic-tokens';
 import { completions } from './completion';
+import { formatting } from './formatting';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -39,9 +40,10 @@ export interface NotebookService {
   foldingRanges: typeof foldingRanges;
   semanticTokens: typeof semanticTokens;
   completions: typeof completions;
+  formatting: typeof formatting;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting };
 }
