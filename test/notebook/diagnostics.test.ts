@@ -203,7 +203,9 @@ describe('diagnostic ranges', () => {
     const covered = text.slice(d.start, d.end);
     if (!(0 <= d.start && d.start <= d.end && d.end <= text.length)) out.push('range outside the text');
     if (/[\r\n]/.test(covered)) out.push(`spans a line break: ${JSON.stringify(covered.slice(0, 60))}`);
-    if (comments.some((c) => c.start <= d.start && d.start < c.end)) out.push('starts inside a note');
+    // Only the diagnostics about an `accept:` note itself belong inside a note.
+    const aboutANote = d.code === 'unknown-code' || d.code === 'unused-accept';
+    if (!aboutANote && comments.some((c) => c.start <= d.start && d.start < c.end)) out.push('starts inside a note');
     return out.map((p) => `${d.code} at ${d.start}-${d.end}: ${p}`);
   }
 

@@ -4,7 +4,7 @@
 // 'failed' with a message, never as a silent wrong answer.
 import { activities, lnQuotient, quotientLogActivities } from './activity';
 import { compact, groupTotals, logActivities, type Compact } from './compact';
-import { dot2Difference, luFactor, luSolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
+import { dot2Difference, nullSpaceBasis, reducedRowEchelon } from './linalg';
 import {
   buildDirections,
   extentNewton,
@@ -19,8 +19,9 @@ import {
   type Directions,
   type ExtentState,
 } from './newton';
+import { absentPhaseTest, formAbsentPhase, holdDwindledPhasesAbsent, VANISH_FRACTION } from './phases';
 import { conservationLaws, polish } from './polish';
-import { prepare, type Prepared } from './problem';
+import { GAS_GROUP, prepare, type Prepared } from './problem';
 import { solveSingleReaction } from './single';
 import { GAS_CONSTANT, type EquilibriumProblem, type EquilibriumResult } from './types';
 
@@ -28,23 +29,16 @@ import { GAS_CONSTANT, type EquilibriumProblem, type EquilibriumResult } from '.
 export const LNQ_TOLERANCE = 1e-9;
 /** Hard bound on the violation of each conservation law, relative to the total amount. */
 export const CONSERVATION_TOLERANCE = 1e-12;
-/**
- * A mole-fraction phase kept only by its phantom inert (real amount at most this fraction of
- * the total, where the phantom is 1e-30 of it) is absent at equilibrium.
- */
-export const VANISH_FRACTION = 1e-20;
-/** An absent mixture phase is stable if ln Σ (implied mole fractions) is at most this. */
-const STABILITY_TOLERANCE = 1e-9;
-/** Newton iterations, gradient tolerance and diagonal regularisation of the tangent-plane minimisation. */
-const STABILITY_ITERATIONS = 50;
-const STABILITY_GRADIENT = 1e-12;
-const STABILITY_REGULARISATION = 1e-14;
-/** Directions that do not form the absent phase must have |g⁰| below this (ln units) at the held optimum. */
-const ABSENT_OPTIMUM_TOLERANCE = 1e-8;
 /** Rounds of (extent Newton, polish, multiplier check) before giving up on the set of present phases. */
 const MAX_ACTIVE_SET_ROUNDS = 20;
 /** Re-seedings of a dwindled phase before giving up. */
 const MAX_NUCLEATIONS = 3;
+/**
+ * Changes of the set of absent mole-fraction phases (held absent, or formed after failing the
+ * stability test) before giving up: each change lowers G or settles a dwindled phase, so
+ * this only guards against a defect.
+ */
+const MAX_PHASE_CHANGES = 6;
 
 /**
  * Equilibrium composition by minimising the Gibbs energy (Helmholtz energy at constant T
@@ -127,60 +121,13 @@ function solveChecked(problem: EquilibriumProblem): EquilibriumResult {
 }
 
 /**
- * The general path: extent-space Newton, then the log-amount polish; the Lagrange
- * multipliers of the held phases are checked again at the polished point (where trace
- * species are exact) and a phase that should form is released for another round. If the
- * polish fails, something at trace level must grow to a real amount: the extent stage
- * goes on in strict mode, re-seeding a phase stuck at its phantom amount if needed. Then
- * the phantom inerts are resolved and a last polish makes the answer exact.
+ * The general path: the active-set iteration (settle), then the phantom inerts are resolved
+ * and a last polish makes the answer exact.
  */
 function solveGeneral(c: Compact, st: ExtentState, p: Prepared): { message?: string; iterations: number } {
-  let iterations = 0;
-  let released = -1;
-  let strict = false;
-  let nucleations = 0;
-  const logA = new Float64Array(c.m);
-  const totals = new Float64Array(2);
-  const gradient = new Float64Array(c.rho);
-  for (let round = 0; ; round++) {
-    if (round > MAX_ACTIVE_SET_ROUNDS) return { message: 'the set of present phases did not settle', iterations };
-    const stage1 = extentNewton(c, st, released, strict);
-    if (!stage1.ok) {
-      if (strict && nucleations < MAX_NUCLEATIONS && renucleate(c, st)) {
-        nucleations++;
-        released = -1;
-        continue;
-      }
-      return { message: stage1.message, iterations };
-    }
-    const stage2 = polish(c, st, stage1.directions);
-    iterations += stage2.iterations;
-    if (!stage2.ok) {
-      if (stage2.underflow !== undefined) return { message: outOfRange(p, c, stage2.underflow), iterations };
-      if (strict) {
-        if (nucleations < MAX_NUCLEATIONS && renucleate(c, st)) {
-          nucleations++;
-          released = -1;
-          continue;
-        }
-        return { message: stage2.message, iterations };
-      }
-      // A dwindling phase may simply be absent: try that hypothesis directly.
-      const absent = tryAbsentPhases(c, st);
-      iterations += absent.iterations;
-      if (absent.ok) return { iterations };
-      // Otherwise something at trace level must grow to a real amount: back to the extent iteration.
-      strict = true;
-      released = -1;
-      continue;
-    }
-    groupTotals(c, st.n, totals);
-    logActivities(c, st.n, totals, logA);
-    for (let j = 0; j < c.m; j++) if (st.held[j] !== FREE && c.mixture[j]) logA[j] = c.offset[j];
-    released = negativeMultiplier(c, st.held, logA, gradient, -1);
-    if (released < 0) break;
-    release(c, st.held, released);
-  }
+  const settled = settle(c, st, p);
+  let iterations = settled.iterations;
+  if (settled.message !== undefined) return settled;
   if (c.phantom[0] > 0 || c.phantom[1] > 0) {
     const directions = removePhantoms(c, st);
     if ('underflow' in directions) return { message: outOfRange(p, c, directions.underflow), iterations };
@@ -192,203 +139,92 @@ function solveGeneral(c: Compact, st: ExtentState, p: Prepared): { message?: str
 }
 
 /**
- * The hypothesis that every phantom phase whose real amount is at most NUCLEATION_FRACTION of
- * the total is absent: its species are held at zero, the phantoms removed, and the polish
- * run. Accepted only if the polish converges, no held pure phase should form (multipliers),
- * and each absent phase passes the tangent-plane test (absentPhaseIsStable). Otherwise the
- * state is restored.
+ * The active-set iteration over the phases: extent-space Newton, then the log-amount polish;
+ * the Lagrange multipliers of the held pure phases are checked again at the polished point
+ * (where trace species are exact) and one that should form is released for another round.
+ * A mole-fraction phase is either present (with its phantom while it could vanish) or held
+ * absent (ExtentState.absent: all members exactly 0, restricted like used-up solids):
+ * - when an attempt fails (Newton or polish) with such a phase dwindled to its phantom
+ *   amount, the phase is held absent and the rest is solved without it (its gain or loss in
+ *   G at that level is below what the iteration can resolve, so it cannot settle it);
+ * - at the optimum, each absent phase must pass the tangent-plane test (absentPhaseTest);
+ *   one that fails must be present at equilibrium (the optimum with it absent would be the
+ *   equilibrium otherwise), and is formed along its incipient composition, which lowers G
+ *   below that optimum, and the iteration goes on with it present.
+ * So the choice between present and absent is made by the stability test alone. If a
+ * polish fails with no phase dwindled, something at trace level must grow to a real amount:
+ * the extent stage goes on in strict mode, re-seeding a phase stuck at its phantom amount
+ * if needed.
  */
-function tryAbsentPhases(c: Compact, st: ExtentState): { ok: boolean; iterations: number } {
-  const gone = [false, false];
-  for (let g = 0; g < 2; g++) {
-    if (!(c.phantom[g] > 0)) continue;
-    let real = 0;
-    for (let j = 0; j < c.m; j++) if (c.group[j] === g) real += st.n[j];
-    gone[g] = real <= NUCLEATION_FRACTION * c.total;
-  }
-  if (!gone[0] && !gone[1]) return { ok: false, iterations: 0 };
-  const saved = { n: Float64Array.from(st.n), xi: Float64Array.from(st.xi), held: Uint8Array.from(st.held), inert: Float64Array.from(c.groupInert), phantom: Float64Array.from(c.phantom) };
-  const restore = (iterations: number): { ok: false; iterations: number } => {
-    st.n.set(saved.n);
-    st.xi.set(saved.xi);
-    st.held.set(saved.held);
-    c.groupInert.set(saved.inert);
-    c.phantom.set(saved.phantom);
-    return { ok: false, iterations };
-  };
-  for (let g = 0; g < 2; g++) {
-    if (gone[g]) for (let j = 0; j < c.m; j++) if (c.group[j] === g) st.n[j] = 0;
-    c.groupInert[g] -= c.phantom[g];
-    c.phantom[g] = 0;
-  }
-  for (let j = 0; j < c.m; j++) if (!c.mixture[j] && st.n[j] <= VANISH_FRACTION * c.total) st.n[j] = 0;
-  for (let j = 0; j < c.m; j++) if (st.n[j] === 0 && st.held[j] === FREE) holdAtZero(c, st.held, j);
-  const result = polish(c, st, buildDirections(c, st.held));
-  if (!result.ok) return restore(result.iterations);
-  const totals = new Float64Array(2);
+function settle(c: Compact, st: ExtentState, p: Prepared): { message?: string; iterations: number } {
+  let iterations = 0;
+  let released = -1;
+  let strict = false;
+  let nucleations = 0;
+  let phaseChanges = 0;
   const logA = new Float64Array(c.m);
-  groupTotals(c, st.n, totals);
-  logActivities(c, st.n, totals, logA);
-  for (let j = 0; j < c.m; j++) if (st.held[j] !== FREE && c.mixture[j]) logA[j] = c.offset[j];
-  const pureOnly = Uint8Array.from(st.held, (h, j) => (h !== FREE && c.group[j] >= 0 && gone[c.group[j]] ? FREE : h));
-  if (negativeMultiplier(c, pureOnly, logA, new Float64Array(c.rho), -1) >= 0) return restore(result.iterations);
-  for (let g = 0; g < 2; g++) if (gone[g] && !absentPhaseIsStable(c, st, g, logA)) return restore(result.iterations);
-  return { ok: true, iterations: result.iterations };
-}
-
-/**
- * Tangent-plane test for an absent mole-fraction phase g (all its species held at zero).
- * Directions that keep the other held phases at zero have gradient g⁰ (ln a of the absent
- * species taken at their pure-phase values); at the held optimum g⁰ = Ñᵀλ with Ñ the
- * absent species' rows, and forming the phase with composition y changes G at the rate
- * Σ y_j (λ_j + ln y_j) over achievable compositions (y in the range of Ñ). By convex duality
- * the least such rate is −min over u ⊥ range(Ñ) of ln Σ_j exp(−λ_j − u_j), so the phase stays
- * absent iff that minimum is <= STABILITY_TOLERANCE. The minimum is found by Newton's method
- * on the (convex) log-sum-exp in the null-space coordinates. With all the rows independent
- * this is the familiar Σ_j exp(−λ_j) <= 1 (implied mole fractions sum to at most one).
- */
-function absentPhaseIsStable(c: Compact, st: ExtentState, g: number, logA: Float64Array): boolean {
-  const { m } = c;
-  const members: number[] = [];
-  for (let j = 0; j < m; j++) if (c.group[j] === g) members.push(j);
-  const others = Uint8Array.from(st.held, (h, j) => (c.group[j] === g ? FREE : h));
-  const dirs = buildDirections(c, others);
-  const k = dirs.k;
-  const q = members.length;
-  // g⁰ per direction, and Ñ (directions × members).
-  const g0 = new Float64Array(k);
-  const nt = new Float64Array(k * q);
-  for (let a = 0; a < k; a++) {
-    let sum = -dirs.kappa[a];
-    for (let j = 0; j < m; j++) {
-      const v = dirs.s[a * m + j];
-      if (v !== 0) sum += v * (c.group[j] === g ? c.offset[j] : logA[j]);
-    }
-    g0[a] = sum;
-    for (let u = 0; u < q; u++) nt[a * q + u] = dirs.s[a * m + members[u]];
-  }
-  // A particular λ: Gauss–Jordan on [Ñᵀ | g⁰]; rows without members must have g⁰ ≈ 0 (held optimum).
-  const e = reducedRowEchelon(nt, k, q, RANK_TOLERANCE);
-  const lambda = new Float64Array(q);
-  {
-    // Re-run the elimination on the augmented system to carry g⁰ along.
-    const aug = new Float64Array(k * (q + 1));
-    for (let a = 0; a < k; a++) {
-      for (let u = 0; u < q; u++) aug[a * (q + 1) + u] = nt[a * q + u];
-      aug[a * (q + 1) + q] = g0[a];
-    }
-    const ea = reducedRowEchelonOnColumns(aug, k, q + 1, q);
-    for (let r = 0; r < ea.rank; r++) lambda[ea.pivotColumns[r]] = ea.reduced[r * (q + 1) + q];
-    for (let r = ea.rank; r < k; r++) if (Math.abs(ea.reduced[r * (q + 1) + q]) > ABSENT_OPTIMUM_TOLERANCE) return false;
-  }
-  const { count, basis: nullBasis } = nullSpaceBasis(e, q);
-  // Minimise L(t) = ln Σ_j exp(−λ_j − (Uᵀt)_j) over t (convex), Newton with backtracking.
-  const t = new Float64Array(count);
-  const w = new Float64Array(q);
-  const value = (tt: Float64Array): number => {
-    let top = -Infinity;
-    for (let u = 0; u < q; u++) {
-      let x = -lambda[u];
-      for (let b = 0; b < count; b++) x -= nullBasis[b * q + u] * tt[b];
-      w[u] = x;
-      top = Math.max(top, x);
-    }
-    let sum = 0;
-    for (let u = 0; u < q; u++) sum += Math.exp(w[u] - top);
-    for (let u = 0; u < q; u++) w[u] = Math.exp(w[u] - top) / sum; // softmax weights
-    return top + Math.log(sum);
-  };
-  let current = value(t);
-  const grad = new Float64Array(count);
-  const hess = new Float64Array(count * count);
-  const perm = new Int32Array(count);
-  for (let it = 0; it < STABILITY_ITERATIONS && current > STABILITY_TOLERANCE; it++) {
-    if (count === 0) break;
-    // ∇ = −U w, ∇² = U (diag w − w wᵀ) Uᵀ
-    for (let b = 0; b < count; b++) {
-      let sum = 0;
-      for (let u = 0; u < q; u++) sum -= nullBasis[b * q + u] * w[u];
-      grad[b] = sum;
-    }
-    for (let b = 0; b < count; b++) {
-      for (let d = 0; d < count; d++) {
-        let sum = 0;
-        let ub = 0;
-        let ud = 0;
-        for (let u = 0; u < q; u++) {
-          sum += nullBasis[b * q + u] * nullBasis[d * q + u] * w[u];
-          ub += nullBasis[b * q + u] * w[u];
-          ud += nullBasis[d * q + u] * w[u];
-        }
-        hess[b * count + d] = sum - ub * ud + (b === d ? STABILITY_REGULARISATION : 0);
+  const totals = new Float64Array(2);
+  const gradient = new Float64Array(c.rho);
+  for (let round = 0; ; round++) {
+    if (round > MAX_ACTIVE_SET_ROUNDS) return { message: 'the set of present phases did not settle', iterations };
+    const stage1 = extentNewton(c, st, released, strict);
+    let failure: string | undefined;
+    if (!stage1.ok) failure = stage1.message;
+    else {
+      const stage2 = polish(c, st, stage1.directions);
+      iterations += stage2.iterations;
+      if (!stage2.ok) {
+        if (stage2.underflow !== undefined) return { message: outOfRange(p, c, stage2.underflow), iterations };
+        failure = stage2.message ?? 'the log-amount polish failed';
       }
     }
-    let norm = 0;
-    for (let b = 0; b < count; b++) norm = Math.max(norm, Math.abs(grad[b]));
-    if (norm < STABILITY_GRADIENT) break;
-    const step = Float64Array.from(grad, (x) => -x);
-    if (!luFactor(hess, count, perm)) break;
-    luSolve(hess, count, perm, step);
-    let size = 1;
-    const trial = new Float64Array(count);
-    let next = current;
-    for (let h = 0; h < 40; h++) {
-      for (let b = 0; b < count; b++) trial[b] = t[b] + size * step[b];
-      next = value(trial);
-      if (next < current) break;
-      size *= 0.5;
-    }
-    if (!(next < current)) break;
-    t.set(trial);
-    current = next;
-    value(t);
-  }
-  return current <= STABILITY_TOLERANCE;
-}
-
-/** Gauss–Jordan on the first `columns` columns of a (rows × width) matrix, carrying the rest along. */
-function reducedRowEchelonOnColumns(a: Float64Array, rows: number, width: number, columns: number): { rank: number; pivotColumns: Int32Array; reduced: Float64Array } {
-  const m = Float64Array.from(a);
-  let scale = 0;
-  for (let i = 0; i < rows; i++) for (let j = 0; j < columns; j++) scale = Math.max(scale, Math.abs(m[i * width + j]));
-  const tol = RANK_TOLERANCE * scale;
-  const used = new Uint8Array(columns);
-  const pivots = new Int32Array(Math.min(rows, columns));
-  let rank = 0;
-  while (rank < rows && rank < columns) {
-    let bi = -1;
-    let bj = -1;
-    let best = tol;
-    for (let i = rank; i < rows; i++) {
-      for (let j = 0; j < columns; j++) {
-        if (used[j]) continue;
-        const v = Math.abs(m[i * width + j]);
-        if (v > best) {
-          best = v;
-          bi = i;
-          bj = j;
-        }
+    if (failure !== undefined) {
+      // A dwindled phase: solve without it; the stability test at the optimum checks that choice.
+      if (phaseChanges < MAX_PHASE_CHANGES && holdDwindledPhasesAbsent(c, st)) {
+        phaseChanges++;
+        strict = false;
+        released = -1;
+        continue;
       }
+      if (strict) {
+        if (nucleations < MAX_NUCLEATIONS && renucleate(c, st)) {
+          nucleations++;
+          released = -1;
+          continue;
+        }
+        return { message: failure, iterations };
+      }
+      if (!stage1.ok) return { message: failure, iterations };
+      // Something at trace level must grow to a real amount: back to the extent iteration.
+      strict = true;
+      released = -1;
+      continue;
     }
-    if (bi < 0) break;
-    for (let j = 0; j < width; j++) {
-      const tmp = m[rank * width + j];
-      m[rank * width + j] = m[bi * width + j];
-      m[bi * width + j] = tmp;
+    groupTotals(c, st.n, totals);
+    logActivities(c, st.n, totals, logA);
+    for (let j = 0; j < c.m; j++) if (st.held[j] !== FREE && c.mixture[j]) logA[j] = c.offset[j];
+    released = negativeMultiplier(c, st.held, logA, gradient, -1, st.absent);
+    if (released >= 0) {
+      release(c, st.held, released);
+      continue;
     }
-    const inv = 1 / m[rank * width + bj];
-    for (let j = 0; j < width; j++) m[rank * width + j] *= inv;
-    for (let i = 0; i < rows; i++) {
-      if (i === rank) continue;
-      const f = m[i * width + bj];
-      if (f === 0) continue;
-      for (let j = 0; j < width; j++) m[i * width + j] -= f * m[rank * width + j];
+    // No pure phase should form: every absent mole-fraction phase must pass the tangent-plane test.
+    let formed = false;
+    for (let g = 0; g < 2 && !formed; g++) {
+      if (!st.absent[g]) continue;
+      const test = absentPhaseTest(c, st, g, logA);
+      if (test.stable) continue;
+      if (phaseChanges >= MAX_PHASE_CHANGES || !formAbsentPhase(c, st, g, test)) {
+        return { message: `the absent ${g === GAS_GROUP ? 'gas' : 'liquid'} phase fails the stability test but could not be formed`, iterations };
+      }
+      phaseChanges++;
+      formed = true;
     }
-    used[bj] = 1;
-    pivots[rank] = bj;
-    rank++;
+    if (!formed) break;
+    strict = false;
+    released = -1;
   }
-  return { rank, pivotColumns: pivots.subarray(0, rank), reduced: m };
+  return { iterations };
 }
 
 function outOfRange(p: Prepared, c: Compact, j: number): string {

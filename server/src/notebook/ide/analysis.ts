@@ -9,6 +9,7 @@ import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../s
 import { batchInputs } from '../semantic/batch-inputs';
 import { resultDiagnostics, SolveCache, solveBatch, type BatchResult } from '../semantic/batch-results';
 import { LineIndex } from './line-index';
+import { applyAcceptances } from './suppression';
 
 export interface Analysis {
   readonly text: string;
@@ -53,11 +54,13 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
     results.set(batch, result);
     batchDiagnostics.push(...resultDiagnostics(batch, result));
   }
-  const diagnostics: Diagnostic[] = [
-    ...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)),
-    ...model.diagnostics,
-    ...batchDiagnostics,
-  ].sort((a, b) => a.start - b.start || a.end - b.end);
+  const lines = new LineIndex(text);
+  const diagnostics = applyAcceptances(
+    [...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)), ...model.diagnostics, ...batchDiagnostics],
+    syntax.tree,
+    text,
+    lines,
+  );
   const items = new Map<StatementNode, StatementAt>();
   for (const d of model.speciesList) items.set(d.node, { node: d.node, kind: 'species', item: d });
   for (const r of model.reactions) items.set(r.node, { node: r.node, kind: 'reaction', item: r });
@@ -79,5 +82,5 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
     }
     return undefined;
   };
-  return { text, syntax, model, diagnostics, lines: new LineIndex(text), results, statementAt };
+  return { text, syntax, model, diagnostics, lines, results, statementAt };
 }

@@ -1,0 +1,333 @@
+// Mole-fraction phases (the gas at constant pressure, the liquid) that may be
+// absent at equilibrium: holding a dwindled phase absent, the tangent-plane
+// test that decides whether an absent phase stays absent, and forming an
+// unstable one with its incipient composition.
+import { groupTotals, logActivities, PHANTOM_FRACTION, type Compact } from './compact';
+import { luFactor, luSolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
+import { AMOUNT_FLOOR, buildDirections, FREE, holdAtZero, NUCLEATION_FRACTION, RANK_TOLERANCE, release, type ExtentState } from './newton';
+
+/**
+ * A pure phase left at most this fraction of the total when a mole-fraction phase is made
+ * absent formed only alongside it (at the phantom's scale) and is set to zero with it.
+ */
+export const VANISH_FRACTION = 1e-20;
+/** An absent mixture phase is stable if ln Σ (implied mole fractions) is at most this. */
+const STABILITY_TOLERANCE = 1e-9;
+/** Newton iterations, gradient tolerance and diagonal regularisation of the tangent-plane minimisation. */
+const STABILITY_ITERATIONS = 50;
+const STABILITY_GRADIENT = 1e-12;
+const STABILITY_REGULARISATION = 1e-14;
+/** Step halvings of the backtracking line search of the tangent-plane minimisation. */
+const STABILITY_HALVINGS = 40;
+/** Directions that do not form the absent phase must have |g⁰| below this (ln units) at the held optimum. */
+const ABSENT_OPTIMUM_TOLERANCE = 1e-8;
+/**
+ * Forming an unstable phase: the search for the best amount along its formation direction
+ * runs in ln ε from this fraction of the largest feasible amount (where G certainly still
+ * falls: the rate there is the tangent-plane rate) ...
+ */
+const FORMATION_START = 1e-30;
+/** ... up to this fraction of the largest feasible amount (strictly inside, so mixture species stay positive) ... */
+const FORMATION_LIMIT = 1 - 1e-9;
+/** ... by this many bisections of ln ε (60 halve a range of ~70 in ln ε to below 1e-16). */
+const FORMATION_BISECTIONS = 60;
+
+/** Members of mole-fraction group g (compact indices). */
+function membersOf(c: Compact, g: number): number[] {
+  const members: number[] = [];
+  for (let j = 0; j < c.m; j++) if (c.group[j] === g) members.push(j);
+  return members;
+}
+
+/**
+ * Holds absent every mole-fraction phase that still carries its phantom (so it could vanish)
+ * and whose real amount has dwindled to at most NUCLEATION_FRACTION of the total: its members
+ * are set to exactly 0 and held (like a used-up solid; the reactions are then restricted to
+ * directions that keep them at 0), and its phantom is removed. A pure phase left at most
+ * VANISH_FRACTION of the total is set to 0 too. The held set is rebuilt with the absent
+ * members first, so their constraints are the independent ones and a pure phase whose zero
+ * they imply is marked as implied. Returns whether any phase was made absent.
+ */
+export function holdDwindledPhasesAbsent(c: Compact, st: ExtentState): boolean {
+  const gone = [false, false];
+  for (let g = 0; g < 2; g++) {
+    if (!(c.phantom[g] > 0)) continue;
+    let real = 0;
+    for (let j = 0; j < c.m; j++) if (c.group[j] === g) real += st.n[j];
+    gone[g] = real <= NUCLEATION_FRACTION * c.total;
+  }
+  if (!gone[0] && !gone[1]) return false;
+  for (let g = 0; g < 2; g++) {
+    if (!gone[g]) continue;
+    for (let j = 0; j < c.m; j++) if (c.group[j] === g) st.n[j] = 0;
+    c.groupInert[g] -= c.phantom[g];
+    c.phantom[g] = 0;
+    st.absent[g] = 1;
+  }
+  for (let j = 0; j < c.m; j++) if (!c.mixture[j] && st.n[j] <= VANISH_FRACTION * c.total) st.n[j] = 0;
+  const wasHeld = Uint8Array.from(st.held);
+  st.held.fill(FREE);
+  for (let j = 0; j < c.m; j++) if (c.group[j] >= 0 && st.absent[c.group[j]]) holdAtZero(c, st.held, j);
+  for (let j = 0; j < c.m; j++) if (st.held[j] === FREE && (wasHeld[j] !== FREE || st.n[j] === 0)) holdAtZero(c, st.held, j);
+  return true;
+}
+
+/** What the tangent-plane test found for an absent phase. */
+export interface PhaseTest {
+  readonly stable: boolean;
+  /**
+   * For an unstable phase whose incipient composition was found: the change of every species
+   * (compact order) per mole of the new phase formed with that composition, along directions
+   * that keep the other held phases at zero; the matching change of the basis-reaction extents;
+   * and Σ (direction coefficient × Σ z·ln K) for the slope of G along it.
+   */
+  readonly dn?: Float64Array;
+  readonly dxi?: Float64Array;
+  readonly kappa?: number;
+}
+
+/**
+ * Tangent-plane test for an absent mole-fraction phase g (all its species held at zero), at
+ * a held optimum of the rest (`logA`: ln a of the free species). Directions that keep the
+ * other held phases at zero have gradient g⁰ (ln a of the absent species taken at their
+ * pure-phase values); at the held optimum g⁰ = Ñλ with Ñ the absent species' columns of the
+ * directions, and forming the phase with composition y changes G at the rate
+ * Σ y_j (λ_j + ln y_j) over achievable compositions (y in the row space of Ñ). By convex
+ * duality the least such rate is −min over u in the null space of Ñ of ln Σ_j exp(−λ_j − u_j),
+ * so the phase stays absent iff that minimum is <= STABILITY_TOLERANCE. The minimum is found
+ * by Newton's method on the (convex) log-sum-exp in the null-space coordinates. With all
+ * the columns independent this is the familiar Σ_j exp(−λ_j) <= 1 (implied mole fractions
+ * sum to at most one). When the phase is unstable, the softmax weights at the minimum are its
+ * incipient composition y (the stationarity condition puts y in the row space of Ñ), and
+ * solving Ñᵀα = y gives the direction that forms it.
+ */
+export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Float64Array): PhaseTest {
+  const { m, rho } = c;
+  const members = membersOf(c, g);
+  // The other held species, re-held without the members (a zero implied by the members is no longer implied).
+  const others = new Uint8Array(m);
+  for (let j = 0; j < m; j++) if (st.held[j] !== FREE && c.group[j] !== g) holdAtZero(c, others, j);
+  const dirs = buildDirections(c, others);
+  const k = dirs.k;
+  const q = members.length;
+  // g⁰ per direction, and Ñ (directions × members).
+  const g0 = new Float64Array(k);
+  const nt = new Float64Array(k * q);
+  for (let a = 0; a < k; a++) {
+    let sum = -dirs.kappa[a];
+    for (let j = 0; j < m; j++) {
+      const v = dirs.s[a * m + j];
+      if (v !== 0) sum += v * (c.group[j] === g ? c.offset[j] : logA[j]);
+    }
+    g0[a] = sum;
+    for (let u = 0; u < q; u++) nt[a * q + u] = dirs.s[a * m + members[u]];
+  }
+  // A particular λ: Gauss–Jordan on [Ñ | g⁰]; rows without members must have g⁰ ≈ 0 (held optimum).
+  const e = reducedRowEchelon(nt, k, q, RANK_TOLERANCE);
+  const lambda = new Float64Array(q);
+  {
+    const aug = new Float64Array(k * (q + 1));
+    for (let a = 0; a < k; a++) {
+      for (let u = 0; u < q; u++) aug[a * (q + 1) + u] = nt[a * q + u];
+      aug[a * (q + 1) + q] = g0[a];
+    }
+    const ea = reducedRowEchelonOnColumns(aug, k, q + 1, q);
+    for (let r = 0; r < ea.rank; r++) lambda[ea.pivotColumns[r]] = ea.reduced[r * (q + 1) + q];
+    for (let r = ea.rank; r < k; r++) if (Math.abs(ea.reduced[r * (q + 1) + q]) > ABSENT_OPTIMUM_TOLERANCE) return { stable: false };
+  }
+  const { count, basis: nullBasis } = nullSpaceBasis(e, q);
+  // Minimise L(t) = ln Σ_j exp(−λ_j − (Uᵀt)_j) over t (convex), Newton with backtracking.
+  const t = new Float64Array(count);
+  const w = new Float64Array(q);
+  const value = (tt: Float64Array): number => {
+    let top = -Infinity;
+    for (let u = 0; u < q; u++) {
+      let x = -lambda[u];
+      for (let b = 0; b < count; b++) x -= nullBasis[b * q + u] * tt[b];
+      w[u] = x;
+      top = Math.max(top, x);
+    }
+    let sum = 0;
+    for (let u = 0; u < q; u++) sum += Math.exp(w[u] - top);
+    for (let u = 0; u < q; u++) w[u] = Math.exp(w[u] - top) / sum; // softmax weights
+    return top + Math.log(sum);
+  };
+  let current = value(t);
+  const grad = new Float64Array(count);
+  const hess = new Float64Array(count * count);
+  const perm = new Int32Array(count);
+  for (let it = 0; it < STABILITY_ITERATIONS && current > STABILITY_TOLERANCE; it++) {
+    if (count === 0) break;
+    // ∇ = −U w, ∇² = U (diag w − w wᵀ) Uᵀ
+    for (let b = 0; b < count; b++) {
+      let sum = 0;
+      for (let u = 0; u < q; u++) sum -= nullBasis[b * q + u] * w[u];
+      grad[b] = sum;
+    }
+    for (let b = 0; b < count; b++) {
+      for (let d = 0; d < count; d++) {
+        let sum = 0;
+        let ub = 0;
+        let ud = 0;
+        for (let u = 0; u < q; u++) {
+          sum += nullBasis[b * q + u] * nullBasis[d * q + u] * w[u];
+          ub += nullBasis[b * q + u] * w[u];
+          ud += nullBasis[d * q + u] * w[u];
+        }
+        hess[b * count + d] = sum - ub * ud + (b === d ? STABILITY_REGULARISATION : 0);
+      }
+    }
+    let norm = 0;
+    for (let b = 0; b < count; b++) norm = Math.max(norm, Math.abs(grad[b]));
+    if (norm < STABILITY_GRADIENT) break;
+    const step = Float64Array.from(grad, (x) => -x);
+    if (!luFactor(hess, count, perm)) break;
+    luSolve(hess, count, perm, step);
+    let size = 1;
+    const trial = new Float64Array(count);
+    let next = current;
+    for (let h = 0; h < STABILITY_HALVINGS; h++) {
+      for (let b = 0; b < count; b++) trial[b] = t[b] + size * step[b];
+      next = value(trial);
+      if (next < current) break;
+      size *= 0.5;
+    }
+    if (!(next < current)) break;
+    t.set(trial);
+    current = next;
+  }
+  value(t); // leaves the softmax weights of the point reached in w
+  if (current <= STABILITY_TOLERANCE) return { stable: true };
+
+  // Unstable: the direction that forms the phase with composition w, from Ñᵀα = w.
+  const aug = new Float64Array(q * (k + 1));
+  for (let u = 0; u < q; u++) {
+    for (let a = 0; a < k; a++) aug[u * (k + 1) + a] = nt[a * q + u];
+    aug[u * (k + 1) + k] = w[u];
+  }
+  const ew = reducedRowEchelonOnColumns(aug, q, k + 1, k);
+  const alpha = new Float64Array(k);
+  for (let r = 0; r < ew.rank; r++) alpha[ew.pivotColumns[r]] = ew.reduced[r * (k + 1) + k];
+  const dn = new Float64Array(m);
+  const dxi = new Float64Array(rho);
+  let kappa = 0;
+  for (let a = 0; a < k; a++) {
+    const x = alpha[a];
+    if (x === 0) continue;
+    kappa += x * dirs.kappa[a];
+    for (let j = 0; j < m; j++) dn[j] += x * dirs.s[a * m + j];
+    for (let r = 0; r < rho; r++) dxi[r] += x * dirs.z[a * rho + r];
+  }
+  return { stable: false, dn, dxi, kappa };
+}
+
+/**
+ * Forms an absent phase that failed the tangent-plane test: moves along its formation
+ * direction (test.dn, one mole of the new phase per unit) by the amount ε that minimises G
+ * on that line. G is convex along it and falls at first (at the tangent-plane rate), so ε is
+ * found by bisection on the sign of dG/dε = Σ dn_j ln a_j(n + ε·dn) − κ in ln ε, between
+ * FORMATION_START and FORMATION_LIMIT of the largest amount that keeps every species
+ * non-negative; G is then strictly below its value at the absent-phase optimum, so the
+ * iteration cannot come back to it. The phase is then present again: its members are
+ * released and its phantom restored. A member whose amount rounds to zero (an implied mole
+ * fraction below the double range) is given AMOUNT_FLOOR of the total, which the polish,
+ * referenced to n0, removes from the conservation laws again. Returns false (and changes
+ * nothing) when no formation direction is known.
+ */
+export function formAbsentPhase(c: Compact, st: ExtentState, g: number, test: PhaseTest): boolean {
+  const { dn, dxi, kappa } = test;
+  if (dn === undefined || dxi === undefined || kappa === undefined) return false;
+  const { m } = c;
+  const n = st.n;
+  const members = membersOf(c, g);
+  let limit = Infinity;
+  for (let j = 0; j < m; j++) if (dn[j] < 0 && st.held[j] === FREE) limit = Math.min(limit, n[j] / -dn[j]);
+  if (!Number.isFinite(limit)) limit = c.total;
+  if (!(limit > 0)) return false;
+  const trial = new Float64Array(m);
+  const totals = new Float64Array(2);
+  const logA = new Float64Array(m);
+  const isMember = new Uint8Array(m);
+  for (const j of members) isMember[j] = 1;
+  // Totals as with the phase present (no phantom yet: the members' own amounts define it).
+  const slope = (eps: number): number => {
+    for (let j = 0; j < m; j++) trial[j] = st.held[j] !== FREE && !isMember[j] ? 0 : n[j] + eps * dn[j];
+    groupTotals(c, trial, totals);
+    logActivities(c, trial, totals, logA);
+    let sum = -kappa;
+    for (let j = 0; j < m; j++) if (dn[j] !== 0 && (st.held[j] === FREE || isMember[j])) sum += dn[j] * logA[j];
+    return sum;
+  };
+  let lo = Math.log(FORMATION_START * limit);
+  let hi = Math.log(FORMATION_LIMIT * limit);
+  let eps: number;
+  const atLimit = slope(Math.exp(hi));
+  if (atLimit < 0) eps = Math.exp(hi);
+  else {
+    for (let b = 0; b < FORMATION_BISECTIONS; b++) {
+      const mid = 0.5 * (lo + hi);
+      const s = slope(Math.exp(mid));
+      if (s < 0) lo = mid;
+      else hi = mid; // a NaN slope (not expected) also shrinks the range
+    }
+    eps = Math.exp(lo);
+  }
+  for (let j = 0; j < m; j++) {
+    if (dn[j] === 0 || (st.held[j] !== FREE && !isMember[j])) continue;
+    const after = n[j] + eps * dn[j];
+    if (c.mixture[j]) n[j] = after > 0 ? after : Math.max(n[j], AMOUNT_FLOOR * c.total);
+    else n[j] = after > 0 ? after : 0;
+  }
+  for (const j of members) if (!(n[j] > 0)) n[j] = AMOUNT_FLOOR * c.total;
+  for (let r = 0; r < c.rho; r++) st.xi[r] += eps * dxi[r];
+  st.absent[g] = 0;
+  c.phantom[g] = PHANTOM_FRACTION * c.total;
+  c.groupInert[g] += c.phantom[g];
+  for (const j of members) release(c, st.held, j);
+  return true;
+}
+
+/** Gauss–Jordan on the first `columns` columns of a (rows × width) matrix, carrying the rest along. */
+function reducedRowEchelonOnColumns(a: Float64Array, rows: number, width: number, columns: number): { rank: number; pivotColumns: Int32Array; reduced: Float64Array } {
+  const m = Float64Array.from(a);
+  let scale = 0;
+  for (let i = 0; i < rows; i++) for (let j = 0; j < columns; j++) scale = Math.max(scale, Math.abs(m[i * width + j]));
+  const tol = RANK_TOLERANCE * scale;
+  const used = new Uint8Array(columns);
+  const pivots = new Int32Array(Math.min(rows, columns));
+  let rank = 0;
+  while (rank < rows && rank < columns) {
+    let bi = -1;
+    let bj = -1;
+    let best = tol;
+    for (let i = rank; i < rows; i++) {
+      for (let j = 0; j < columns; j++) {
+        if (used[j]) continue;
+        const v = Math.abs(m[i * width + j]);
+        if (v > best) {
+          best = v;
+          bi = i;
+          bj = j;
+        }
+      }
+    }
+    if (bi < 0) break;
+    for (let j = 0; j < width; j++) {
+      const tmp = m[rank * width + j];
+      m[rank * width + j] = m[bi * width + j];
+      m[bi * width + j] = tmp;
+    }
+    const inv = 1 / m[rank * width + bj];
+    for (let j = 0; j < width; j++) m[rank * width + j] *= inv;
+    for (let i = 0; i < rows; i++) {
+      if (i === rank) continue;
+      const f = m[i * width + bj];
+      if (f === 0) continue;
+      for (let j = 0; j < width; j++) m[i * width + j] -= f * m[rank * width + j];
+    }
+    used[bj] = 1;
+    pivots[rank] = bj;
+    rank++;
+  }
+  return { rank, pivotColumns: pivots.subarray(0, rank), reduced: m };
+}
