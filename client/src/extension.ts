@@ -1,10 +1,43 @@
 // The thin VS Code client: starts the bundled language server for `eqnb`
-// documents and stops it on deactivation. Nothing else lives here.
+// documents, registers the Stillpoint commands (which call the server), and
+// shows the server's notebook summary in the status bar. No analysis here.
 import * as path from 'node:path';
-import { workspace, type ExtensionContext } from 'vscode';
-import { LanguageClient, TransportKind, type LanguageClientOptions, type ServerOptions } from 'vscode-languageclient/node';
+import {
+  commands,
+  env,
+  StatusBarAlignment,
+  window,
+  workspace,
+  type ExtensionContext,
+  type StatusBarItem,
+} from 'vscode';
+import {
+  CloseAction,
+  ErrorAction,
+  LanguageClient,
+  TransportKind,
+  type LanguageClientOptions,
+  type ServerOptions,
+} from 'vscode-languageclient/node';
 
 let client: LanguageClient | undefined;
+
+/** Restarts allowed within RESTART_WINDOW_MS before the client gives up and says so. */
+const MAX_RESTARTS = 4;
+const RESTART_WINDOW_MS = 3 * 60 * 1000;
+
+interface Summary {
+  uri: string;
+  reactions: number;
+  batches: number;
+  errors: number;
+  warnings: number;
+}
+
+function diagnosticsOptions(): unknown {
+  const config = workspace.getConfiguration('stillpoint');
+  return { silence: config.get<string[]>('diagnostics.silence', []), severity: config.get<Record<string, string>>('diagnostics.severity', {}) };
+}
 
 export async function activate(context: ExtensionContext): Promise<void> {
   const serverModule = context.asAbsolutePath(path.join('dist', 'server.js'));
@@ -13,18 +46,94 @@ export async function activate(context: ExtensionContext): Promise<void> {
     debug: { module: serverModule, transport: TransportKind.ipc, options: { execArgv: ['--nolazy', '--inspect=6009'] } },
   };
   const config = workspace.getConfiguration('stillpoint');
+  const restarts: number[] = [];
   const clientOptions: LanguageClientOptions = {
     documentSelector: [{ language: 'eqnb' }],
-    initializationOptions: { diagnosticsDelayMs: config.get<number>('diagnostics.delayMs', 250) },
+    synchronize: { configurationSection: 'stillpoint' },
+    initializationOptions: { diagnosticsDelayMs: config.get<number>('diagnostics.delayMs', 250), diagnostics: diagnosticsOptions() },
     middleware: {
       // The `stillpoint.inlayHints.enabled` setting is read on every request, so it applies at once.
       provideInlayHints: (document, range, token, next) =>
         workspace.getConfiguration('stillpoint').get<boolean>('inlayHints.enabled', true) ? next(document, range, token) : [],
     },
+    errorHandler: {
+      error: () => ({ action: ErrorAction.Continue }),
+      closed: () => {
+        const now = Date.now();
+        restarts.push(now);
+        while (restarts.length > 0 && now - restarts[0] > RESTART_WINDOW_MS) restarts.shift();
+        if (restarts.length > MAX_RESTARTS) {
+          void window.showErrorMessage('The Stillpoint server stopped repeatedly and will not be restarted. Run "Stillpoint: Show Server Output" for details, then "Stillpoint: Restart Server".');
+          return { action: CloseAction.DoNotRestart, handled: true };
+        }
+        void window.showWarningMessage('The Stillpoint server stopped unexpectedly and has been restarted.');
+        return { action: CloseAction.Restart, handled: true };
+      },
+    },
   };
   client = new LanguageClient('stillpoint', 'Stillpoint', serverOptions, clientOptions);
-  context.subscriptions.push({ dispose: () => void client?.stop() });
+
+  const status: StatusBarItem = window.createStatusBarItem(StatusBarAlignment.Left, 10);
+  status.command = 'workbench.actions.view.problems';
+  const summaries = new Map<string, Summary>();
+  const showStatus = (): void => {
+    const doc = window.activeTextEditor?.document;
+    const s = doc && doc.languageId === 'eqnb' ? summaries.get(doc.uri.toString()) : undefined;
+    if (!s) {
+      status.hide();
+      return;
+    }
+    const problems = s.errors + s.warnings;
+    status.text = `$(beaker) ${s.reactions} reaction${s.reactions === 1 ? '' : 's'}, ${s.batches} batch${s.batches === 1 ? '' : 'es'}${problems > 0 ? `, $(warning) ${problems}` : ', $(check)'}`;
+    status.tooltip = `Stillpoint: ${s.errors} error${s.errors === 1 ? '' : 's'}, ${s.warnings} warning${s.warnings === 1 ? '' : 's'} in this notebook`;
+    status.show();
+  };
+
+  const activeUri = (): string | undefined => {
+    const doc = window.activeTextEditor?.document;
+    return doc && doc.languageId === 'eqnb' ? doc.uri.toString() : undefined;
+  };
+
+  context.subscriptions.push(
+    status,
+    window.onDidChangeActiveTextEditor(showStatus),
+    commands.registerCommand('stillpoint.balanceAll', async () => {
+      const uri = activeUri();
+      if (!uri || !client) return;
+      const count = await client.sendRequest<number>('workspace/executeCommand', { command: 'stillpoint.server.balanceAll', arguments: [uri] });
+      void window.showInformationMessage(count > 0 ? `Balanced ${count} equation${count === 1 ? '' : 's'}.` : 'No equation needs balancing (or none has a unique balance).');
+    }),
+    commands.registerCommand('stillpoint.copyBatchResults', async (uriArg?: string, nameArg?: string) => {
+      const uri = uriArg ?? activeUri();
+      if (!uri || !client) return;
+      let name = nameArg;
+      if (!name) {
+        const names = await client.sendRequest<string[]>('workspace/executeCommand', { command: 'stillpoint.server.batchNames', arguments: [uri] });
+        name = names.length === 1 ? names[0] : await window.showQuickPick(names, { placeHolder: 'Copy the results of which batch?' });
+      }
+      if (!name) return;
+      const md = await client.sendRequest<string | null>('workspace/executeCommand', { command: 'stillpoint.server.batchMarkdown', arguments: [uri, name] });
+      if (!md) return;
+      await env.clipboard.writeText(md);
+      void window.showInformationMessage(`Copied the results of batch ${name} as a Markdown table.`);
+    }),
+    commands.registerCommand('stillpoint.restartServer', async () => {
+      await client?.restart();
+    }),
+    commands.registerCommand('stillpoint.showOutput', () => client?.outputChannel.show()),
+    commands.registerCommand('stillpoint.openExample', async () => {
+      const file = context.asAbsolutePath(path.join('media', 'example.eqnb'));
+      await window.showTextDocument(await workspace.openTextDocument(file));
+    }),
+    { dispose: () => void client?.stop() },
+  );
+
   await client.start();
+  client.onNotification('stillpoint/summary', (s: Summary) => {
+    summaries.set(s.uri, s);
+    showStatus();
+  });
+  showStatus();
 }
 
 export async function deactivate(): Promise<void> {

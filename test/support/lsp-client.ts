@@ -23,6 +23,8 @@ export class LspTestClient {
   private nextId = 1;
   private readonly pending = new Map<number, { resolve: (m: Message) => void }>();
   readonly notifications: Message[] = [];
+  /** Requests the server sent to this client (workspace/applyEdit, ...). */
+  readonly serverRequests: Message[] = [];
   private readonly waiters: { method: string; test: (p: Json | undefined) => boolean; resolve: (p: Json | undefined) => void }[] = [];
   stderr = '';
 
@@ -60,8 +62,10 @@ export class LspTestClient {
       return;
     }
     if (msg.id !== undefined && msg.method !== undefined) {
-      // A request from the server (e.g. workspace/configuration): answer with nulls.
-      this.send({ jsonrpc: '2.0', id: msg.id, result: null });
+      // A request from the server. Edits are recorded and accepted, as an editor would apply them;
+      // anything else (e.g. workspace/configuration) is answered with null.
+      this.serverRequests.push(msg);
+      this.send({ jsonrpc: '2.0', id: msg.id, result: msg.method === 'workspace/applyEdit' ? { applied: true } : null });
       return;
     }
     this.notifications.push(msg);

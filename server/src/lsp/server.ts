@@ -16,13 +16,50 @@ import {
 } from 'vscode-languageserver/node';
 import { SEMANTIC_TOKEN_MODIFIERS, SEMANTIC_TOKEN_TYPES } from '../notebook/ide/semantic-tokens';
 import { WorkspaceIndex } from './workspace';
-import { createNotebookService } from '../notebook/ide/service';
+import { createNotebookService, type Analysis, type Diagnostic, type Severity } from '../notebook/ide/service';
 import { toCodeAction, toCompletionList, toDiagnostic, toDocumentSymbol, toHover, toInlayHint, toRange, toSemanticTokens, toSymbolInformation } from './convert';
 import { DocumentStore } from './documents';
 import { runSafe } from './safe';
 
 /** Default wait after the last keystroke before diagnostics are recomputed (ms). */
 export const DEFAULT_DIAGNOSTICS_DELAY_MS = 250;
+
+/** Commands the server runs for the client (the client's own commands call these). */
+export const SERVER_COMMANDS = {
+  balanceAll: 'stillpoint.server.balanceAll',
+  batchMarkdown: 'stillpoint.server.batchMarkdown',
+  batchNames: 'stillpoint.server.batchNames',
+} as const;
+
+/** The notification that carries a notebook's summary to the client's status bar. */
+export const SUMMARY_NOTIFICATION = 'stillpoint/summary';
+
+/** Diagnostics settings (`stillpoint.diagnostics.*`): codes to silence, and severity overrides. */
+export interface DiagnosticsSettings {
+  readonly silence: readonly string[];
+  readonly severity: Readonly<Record<string, Severity>>;
+}
+
+const SEVERITIES: readonly Severity[] = ['error', 'warning', 'information', 'hint'];
+
+/** Reads the settings leniently: anything malformed is ignored, never fatal. */
+export function readDiagnosticsSettings(raw: unknown): DiagnosticsSettings {
+  const o = (raw ?? {}) as { silence?: unknown; severity?: unknown };
+  const silence = Array.isArray(o.silence) ? o.silence.filter((x): x is string => typeof x === 'string') : [];
+  const severity: Record<string, Severity> = {};
+  if (o.severity && typeof o.severity === 'object') {
+    for (const [code, value] of Object.entries(o.severity as Record<string, unknown>)) {
+      if (typeof value === 'string' && (SEVERITIES as readonly string[]).includes(value)) severity[code] = value as Severity;
+    }
+  }
+  return { silence, severity };
+}
+
+export function applyDiagnosticsSettings(diagnostics: readonly Diagnostic[], settings: DiagnosticsSettings): Diagnostic[] {
+  return diagnostics
+    .filter((d) => !settings.silence.includes(d.code))
+    .map((d) => (settings.severity[d.code] ? { ...d, severity: settings.severity[d.code] } : d));
+}
 
 export function startServer(connection: Connection): void {
   const service = createNotebookService();
@@ -31,10 +68,22 @@ export function startServer(connection: Connection): void {
   let delayMs = DEFAULT_DIAGNOSTICS_DELAY_MS;
   /** Clients that pull diagnostics (LSP 3.17) get them on request; the others get them published. */
   let pullDiagnostics = false;
+  let settings: DiagnosticsSettings = { silence: [], severity: {} };
+  const shownDiagnostics = (analysis: Analysis) => applyDiagnosticsSettings(analysis.diagnostics, settings).map((d) => toDiagnostic(analysis, d));
+  const sendSummary = (uri: string, analysis: Analysis): void => {
+    const diagnostics = applyDiagnosticsSettings(analysis.diagnostics, settings);
+    void connection.sendNotification(SUMMARY_NOTIFICATION, {
+      uri,
+      ...service.summary(analysis),
+      errors: diagnostics.filter((d) => d.severity === 'error').length,
+      warnings: diagnostics.filter((d) => d.severity === 'warning').length,
+    });
+  };
   const workspace = new WorkspaceIndex(service, (uri) => (store.documents.get(uri) ? store.analysis(uri) : undefined));
 
   connection.onInitialize((params: InitializeParams): InitializeResult => {
-    const options = params.initializationOptions as { diagnosticsDelayMs?: unknown } | undefined;
+    const options = params.initializationOptions as { diagnosticsDelayMs?: unknown; diagnostics?: unknown } | undefined;
+    settings = readDiagnosticsSettings(options?.diagnostics);
     if (typeof options?.diagnosticsDelayMs === 'number' && options.diagnosticsDelayMs >= 0) delayMs = options.diagnosticsDelayMs;
     pullDiagnostics = params.capabilities.textDocument?.diagnostic !== undefined;
     workspace.setRoots([...(params.workspaceFolders ?? []).map((f) => f.uri), ...(params.workspaceFolders ? [] : params.rootUri ? [params.rootUri] : [])]);
@@ -47,6 +96,8 @@ export function startServer(connection: Connection): void {
         inlayHintProvider: true,
         completionProvider: { triggerCharacters: [' '] },
         documentFormattingProvider: true,
+        codeLensProvider: { resolveProvider: false },
+        executeCommandProvider: { commands: Object.values(SERVER_COMMANDS) },
         documentRangeFormattingProvider: true,
         definitionProvider: true,
         referencesProvider: true,
@@ -66,11 +117,16 @@ export function startServer(connection: Connection): void {
 
   const publish = (uri: string): void => {
     timers.delete(uri);
-    if (pullDiagnostics) return;
+    if (pullDiagnostics) {
+      const analysis = store.analysis(uri);
+      if (analysis) sendSummary(uri, analysis);
+      return;
+    }
     runSafe(connection, 'diagnostics', undefined, () => {
       const analysis = store.analysis(uri);
       if (!analysis) return;
-      void connection.sendDiagnostics({ uri, diagnostics: analysis.diagnostics.map((d) => toDiagnostic(analysis, d)) });
+      void connection.sendDiagnostics({ uri, diagnostics: shownDiagnostics(analysis) });
+      sendSummary(uri, analysis);
     });
   };
   const schedule = (uri: string, delay: number): void => {
@@ -132,7 +188,7 @@ export function startServer(connection: Connection): void {
       const analysis = store.analysis(params.textDocument.uri);
       return {
         kind: DocumentDiagnosticReportKind.Full,
-        items: analysis ? analysis.diagnostics.map((d) => toDiagnostic(analysis, d)) : [],
+        items: analysis ? shownDiagnostics(analysis) : [],
       };
     }),
   );
@@ -155,6 +211,50 @@ export function startServer(connection: Connection): void {
     });
   connection.onDocumentFormatting((params) => formatEdits(params.textDocument.uri));
   connection.onDocumentRangeFormatting((params) => formatEdits(params.textDocument.uri, params.range));
+
+  connection.onDidChangeConfiguration((change) => {
+    const section = (change.settings as { stillpoint?: { diagnostics?: unknown } } | undefined)?.stillpoint;
+    if (!section) return;
+    settings = readDiagnosticsSettings(section.diagnostics);
+    if (pullDiagnostics) connection.languages.diagnostics.refresh();
+    else for (const doc of store.documents.all()) schedule(doc.uri, 0);
+  });
+
+  connection.onCodeLens((params) =>
+    runSafe(connection, 'code lens', [], () => {
+      const analysis = store.analysis(params.textDocument.uri);
+      if (!analysis) return [];
+      return service.codeLenses(analysis).map((l) => ({
+        range: toRange(analysis, l.start, l.end),
+        command: { title: l.title, command: 'stillpoint.copyBatchResults', arguments: [params.textDocument.uri, l.batch] },
+      }));
+    }),
+  );
+
+  connection.onExecuteCommand(async (params) => {
+    const [uri, name] = (params.arguments ?? []) as [unknown, unknown];
+    if (typeof uri !== 'string') return null;
+    const analysis = runSafe(connection, 'command', undefined, () => store.analysis(uri));
+    if (!analysis) return null;
+    switch (params.command) {
+      case SERVER_COMMANDS.batchMarkdown:
+        return typeof name === 'string' ? (runSafe(connection, 'batch table', undefined, () => service.batchMarkdown(analysis, name)) ?? null) : null;
+      case SERVER_COMMANDS.batchNames:
+        return analysis.model.batches.map((b) => b.name);
+      case SERVER_COMMANDS.balanceAll: {
+        const edits = runSafe(connection, 'balance all', [], () => service.balanceAllEdits(analysis));
+        if (edits.length === 0) return 0;
+        const doc = store.documents.get(uri);
+        const applied = await connection.workspace.applyEdit({
+          label: 'Balance every equation',
+          edit: { documentChanges: [{ textDocument: { uri, version: doc?.version ?? null }, edits: edits.map((e) => ({ range: toRange(analysis, e.start, e.end), newText: e.newText })) }] },
+        });
+        return applied?.applied ? edits.length : 0;
+      }
+      default:
+        return null;
+    }
+  });
 
   connection.onDefinition((params) =>
     runSafe(connection, 'definition', null, () => {

@@ -12,6 +12,7 @@ import { foldingRanges } from './folding';
 import { semanticTokens } from './semantic-tokens';
 import { completions } from './completion';
 import { formatting } from './formatting';
+import { balanceAllEdits, batchMarkdown, codeLenses, summary } from './commands';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -23,6 +24,7 @@ export type { Highlight, Range, RenameResult } from './references';
 export type { FoldingRange } from './folding';
 export type { SemanticToken } from './semantic-tokens';
 export type { CompletionItem, CompletionResult } from './completion';
+export type { CodeLens, NotebookSummary } from './commands';
 export type { Diagnostic, Fix, TextEdit, Severity, DiagnosticCode } from '../semantic/codes';
 
 export interface NotebookService {
@@ -41,9 +43,13 @@ export interface NotebookService {
   semanticTokens: typeof semanticTokens;
   completions: typeof completions;
   formatting: typeof formatting;
+  balanceAllEdits: typeof balanceAllEdits;
+  batchMarkdown: typeof batchMarkdown;
+  summary: typeof summary;
+  codeLenses: typeof codeLenses;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting, balanceAllEdits, batchMarkdown, summary, codeLenses };
 }
