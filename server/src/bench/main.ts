@@ -2,11 +2,13 @@
 // asserted in tests). Cases: the solver on one reaction, on steam reforming
 // with the water-gas shift, and on a random 20-reaction network; a generated
 // 5,000-line notebook with 200 batches, analysed cold, and re-analysed after a
-// one-character edit with the caches warm; and hovers on it.
+// one-character edit with the caches warm; hovers on it; and, over the real
+// protocol, server startup to first diagnostics and hovers while typing.
 import { performance } from 'node:perf_hooks';
 import { createNotebookService } from '../notebook/ide/service';
 import { generateNotebook } from './generate';
 import { runSolverBenchmarks } from './solver';
+import { runEditorBenchmarks } from './editor';
 
 const LINES = 5000;
 const EDIT_RUNS = 25;
@@ -74,3 +76,6 @@ report.push(
   `hover: median ${(hover * 1000).toFixed(1)} µs over ${HOVER_RUNS} hovers, ${answered} answered (target < ${HOVER_TARGET_MS} ms: ${(hover / HOVER_TARGET_MS).toFixed(4)} of budget)`,
 );
 for (const line of report) console.log(line);
+void runEditorBenchmarks().then((lines) => {
+  for (const line of lines) console.log(line);
+});

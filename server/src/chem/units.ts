@@ -1,7 +1,7 @@
 // Quantities with units: a number written by the chemist plus a unit text,
 // converted to SI with a private mathjs instance. Only unit texts are handed to
 // mathjs (Unit.parse), never expressions: nothing in a notebook is evaluated.
-import { create, all, type MathJsInstance, type Unit } from 'mathjs';
+import { create, createUnitDependencies, unitDependencies, type MathJsInstance, type Unit } from 'mathjs';
 
 /** The kinds of quantity a notebook may write, each with its SI unit. */
 export type Dimension =
@@ -41,7 +41,8 @@ let instance: MathJsInstance | undefined;
 /** The private mathjs instance, with the units chemists write that mathjs lacks. */
 function math(): MathJsInstance {
   if (instance) return instance;
-  const m = create(all, {});
+  // Only the unit machinery: loading all of mathjs would slow the server's start for nothing.
+  const m = create({ unitDependencies, createUnitDependencies }, {});
   // Molarity is not a built-in mathjs unit: define it explicitly (1 M = 1 mol/L).
   m.createUnit('M', { definition: '1 mol/L', prefixes: 'short' });
   // mathjs rounds these; use the definitions instead (NIST SP 811): 1 torr = 101325/760 Pa,

@@ -79,12 +79,13 @@ export function startServer(connection: Connection): void {
       warnings: diagnostics.filter((d) => d.severity === 'warning').length,
     });
   };
-  const workspace = new WorkspaceIndex(service, (uri) => (store.documents.get(uri) ? store.analysis(uri) : undefined));
+  const workspace = new WorkspaceIndex(service, (uri) => (store.documents.get(uri) ? store.current(uri) : undefined));
 
   connection.onInitialize((params: InitializeParams): InitializeResult => {
     const options = params.initializationOptions as { diagnosticsDelayMs?: unknown; diagnostics?: unknown } | undefined;
     settings = readDiagnosticsSettings(options?.diagnostics);
     if (typeof options?.diagnosticsDelayMs === 'number' && options.diagnosticsDelayMs >= 0) delayMs = options.diagnosticsDelayMs;
+    store.delayMs = delayMs;
     pullDiagnostics = params.capabilities.textDocument?.diagnostic !== undefined;
     workspace.setRoots([...(params.workspaceFolders ?? []).map((f) => f.uri), ...(params.workspaceFolders ? [] : params.rootUri ? [params.rootUri] : [])]);
     return {
@@ -118,12 +119,12 @@ export function startServer(connection: Connection): void {
   const publish = (uri: string): void => {
     timers.delete(uri);
     if (pullDiagnostics) {
-      const analysis = store.analysis(uri);
+      const analysis = store.current(uri);
       if (analysis) sendSummary(uri, analysis);
       return;
     }
     runSafe(connection, 'diagnostics', undefined, () => {
-      const analysis = store.analysis(uri);
+      const analysis = store.current(uri);
       if (!analysis) return;
       void connection.sendDiagnostics({ uri, diagnostics: shownDiagnostics(analysis) });
       sendSummary(uri, analysis);
@@ -148,7 +149,7 @@ export function startServer(connection: Connection): void {
 
   connection.onHover((params) =>
     runSafe(connection, 'hover', null, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       if (!analysis) return null;
       const h = service.hover(analysis, analysis.lines.offset(params.position));
       return h ? toHover(analysis, h) : null;
@@ -157,7 +158,7 @@ export function startServer(connection: Connection): void {
 
   connection.onCodeAction((params) =>
     runSafe(connection, 'code actions', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return [];
       const start = analysis.lines.offset(params.range.start);
       const end = analysis.lines.offset(params.range.end);
@@ -167,7 +168,7 @@ export function startServer(connection: Connection): void {
 
   connection.onDocumentSymbol((params) =>
     runSafe(connection, 'document symbols', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       if (!analysis) return [];
       return service.documentSymbols(analysis).map((s) => toDocumentSymbol(analysis, s));
     }),
@@ -175,7 +176,7 @@ export function startServer(connection: Connection): void {
 
   connection.languages.inlayHint.on((params) =>
     runSafe(connection, 'inlay hints', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       if (!analysis) return [];
       const start = analysis.lines.offset(params.range.start);
       const end = analysis.lines.offset(params.range.end);
@@ -185,7 +186,7 @@ export function startServer(connection: Connection): void {
 
   connection.languages.diagnostics.on((params) =>
     runSafe(connection, 'diagnostics', { kind: DocumentDiagnosticReportKind.Full, items: [] }, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       return {
         kind: DocumentDiagnosticReportKind.Full,
         items: analysis ? shownDiagnostics(analysis) : [],
@@ -195,7 +196,7 @@ export function startServer(connection: Connection): void {
 
   connection.onCompletion((params) =>
     runSafe(connection, 'completion', null, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return null;
       return toCompletionList(analysis, service.completions(analysis, analysis.lines.offset(params.position)));
     }),
@@ -203,7 +204,7 @@ export function startServer(connection: Connection): void {
 
   const formatEdits = (uri: string, range?: { start: { line: number; character: number }; end: { line: number; character: number } }) =>
     runSafe(connection, 'formatting', [], () => {
-      const analysis = store.analysis(uri);
+      const analysis = store.current(uri);
       if (!analysis) return [];
       const start = range ? analysis.lines.offset(range.start) : 0;
       const end = range ? analysis.lines.offset(range.end) : analysis.text.length;
@@ -222,7 +223,7 @@ export function startServer(connection: Connection): void {
 
   connection.onCodeLens((params) =>
     runSafe(connection, 'code lens', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       if (!analysis) return [];
       return service.codeLenses(analysis).map((l) => ({
         range: toRange(analysis, l.start, l.end),
@@ -234,7 +235,7 @@ export function startServer(connection: Connection): void {
   connection.onExecuteCommand(async (params) => {
     const [uri, name] = (params.arguments ?? []) as [unknown, unknown];
     if (typeof uri !== 'string') return null;
-    const analysis = runSafe(connection, 'command', undefined, () => store.analysis(uri));
+    const analysis = runSafe(connection, 'command', undefined, () => store.current(uri));
     if (!analysis) return null;
     switch (params.command) {
       case SERVER_COMMANDS.batchMarkdown:
@@ -258,7 +259,7 @@ export function startServer(connection: Connection): void {
 
   connection.onDefinition((params) =>
     runSafe(connection, 'definition', null, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return null;
       const d = service.definition(analysis, analysis.lines.offset(params.position));
       return d ? { uri: params.textDocument.uri, range: toRange(analysis, d.start, d.end) } : null;
@@ -267,7 +268,7 @@ export function startServer(connection: Connection): void {
 
   connection.onReferences((params) =>
     runSafe(connection, 'references', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return [];
       return service
         .references(analysis, analysis.lines.offset(params.position), params.context.includeDeclaration)
@@ -277,7 +278,7 @@ export function startServer(connection: Connection): void {
 
   connection.onDocumentHighlight((params) =>
     runSafe(connection, 'highlights', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return [];
       return service.documentHighlights(analysis, analysis.lines.offset(params.position)).map((h) => ({
         range: toRange(analysis, h.start, h.end),
@@ -288,7 +289,7 @@ export function startServer(connection: Connection): void {
 
   connection.onPrepareRename((params) =>
     runSafe(connection, 'prepare rename', null, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return null;
       const r = service.prepareRename(analysis, analysis.lines.offset(params.position));
       return r ? { range: toRange(analysis, r.start, r.end), placeholder: r.placeholder } : null;
@@ -297,7 +298,7 @@ export function startServer(connection: Connection): void {
 
   connection.onRenameRequest((params) => {
     const result = runSafe(connection, 'rename', undefined as WorkspaceEdit | ResponseError<void> | undefined, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.current(params.textDocument.uri);
       if (!analysis) return undefined;
       const r = service.rename(analysis, analysis.lines.offset(params.position), params.newName);
       if (!r.ok) return new ResponseError<void>(ErrorCodes.InvalidRequest, r.message);
@@ -308,14 +309,14 @@ export function startServer(connection: Connection): void {
 
   connection.onFoldingRanges((params) =>
     runSafe(connection, 'folding', [], () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       return analysis ? service.foldingRanges(analysis) : [];
     }),
   );
 
   connection.languages.semanticTokens.on((params) =>
     runSafe(connection, 'semantic tokens', { data: [] }, () => {
-      const analysis = store.analysis(params.textDocument.uri);
+      const analysis = store.latest(params.textDocument.uri);
       return analysis ? toSemanticTokens(analysis, service.semanticTokens(analysis)) : { data: [] };
     }),
   );
