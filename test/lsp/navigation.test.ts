@@ -121,6 +121,31 @@ describe('completion over the protocol', () => {
   });
 });
 
+describe('formatting over the protocol', () => {
+  const MESSY = 'species  acid=C6H12O2(l)\nesterify:acid + EtOH<=>C8H16O2(l) +  H2O(l)\n  K=4.0 at 60 °C\n';
+  const uri = 'file:///tmp/stillpoint-nav/messy.eqnb';
+
+  it('formats the document', async () => {
+    client = new LspTestClient();
+    await client.initialize();
+    client.notify('textDocument/didOpen', { textDocument: { uri, languageId: 'eqnb', version: 1, text: MESSY } });
+    const edits = await client.request<LspTextEdit[]>('textDocument/formatting', { textDocument: { uri }, options: { tabSize: 2, insertSpaces: true } });
+    expect(applyEdits(MESSY, edits)).toBe('species acid = C6H12O2(l)\nesterify: acid + EtOH <=> C8H16O2(l) + H2O(l)\n  K = 4.0 at 60 °C\n');
+  });
+
+  it('formats only the lines of a range', async () => {
+    client = new LspTestClient();
+    await client.initialize();
+    client.notify('textDocument/didOpen', { textDocument: { uri, languageId: 'eqnb', version: 1, text: MESSY } });
+    const edits = await client.request<LspTextEdit[]>('textDocument/rangeFormatting', {
+      textDocument: { uri },
+      range: { start: { line: 1, character: 0 }, end: { line: 1, character: 5 } },
+      options: { tabSize: 2, insertSpaces: true },
+    });
+    expect(applyEdits(MESSY, edits).split('\n')).toEqual(['species  acid=C6H12O2(l)', 'esterify: acid + EtOH <=> C8H16O2(l) + H2O(l)', '  K=4.0 at 60 °C', '']);
+  });
+});
+
 describe('presentation', () => {
   it('folds statements with property lines', async () => {
     client = await open();
