@@ -8,8 +8,14 @@ import type { Prepared } from './problem';
 
 /** Each reaction that first makes a species formable is run this fraction of the way to its limit, for a strictly interior start. */
 export const KICK_FRACTION = 0.1;
-/** A phase with a phantom whose real amount is at most this fraction of the total may be re-seeded. */
+/** A phase with a phantom whose real amount is at most this fraction of the total may be re-seeded, or held absent after a failure. */
 export const NUCLEATION_FRACTION = 1e-9;
+/**
+ * A mole-fraction phase kept only by its phantom inert (real amount at most this fraction of
+ * the total, where the phantom is 1e-30 of it) is absent at equilibrium; a pure phase left at
+ * most this much when such a phase goes formed only alongside it and goes too.
+ */
+export const VANISH_FRACTION = 1e-20;
 /**
  * Subspace optimum reached when no species would change by more than this fraction of
  * max(n_j, RESOLUTION·total) in a full Newton step: the major species are then accurate
@@ -43,7 +49,7 @@ export const MIN_PIVOT = 1e-10;
 export const MULTIPLIER_TOLERANCE = 1e-9;
 /** Line search accepts a step t when the directional derivative satisfies φ'(t) <= this × |φ'(0)| (a decrease for convex φ). */
 export const LINE_SEARCH_SLOPE = 0.5;
-/** Iteration cap of the extent-space Newton loop, active-set changes included. */
+/** Iteration cap of the extent-space Newton loop, active-set changes included (per set of absent mole-fraction phases). */
 export const MAX_ITERATIONS = 500;
 /** Below this fraction of the largest amount a mixture species counts as trace for the adapted basis. */
 const TRACE_FRACTION = 1e-6;
@@ -100,6 +106,8 @@ export interface ExtentState {
    */
   readonly absent: Uint8Array;
   iterations: number;
+  /** `iterations` when the set of absent phases last changed: MAX_ITERATIONS counts from here. */
+  iterationBase: number;
 }
 
 export interface StageOutcome {
@@ -133,7 +141,7 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
     for (let k = 0; k < c.rho; k++) xi[k] += p.basisCoefficients[r * c.rho + k] * eps;
   }
   for (let j = 0; j < c.m; j++) if (n[j] < 0) n[j] = 0;
-  return { n, xi, held: new Uint8Array(c.m), absent: new Uint8Array(2), iterations: 0 };
+  return { n, xi, held: new Uint8Array(c.m), absent: new Uint8Array(2), iterations: 0, iterationBase: 0 };
 }
 
 /**
@@ -429,7 +437,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
   let basisFor: Directions | undefined; // the directions the working basis (ws.s, ws.kappa, ws.z) was built from
   for (;;) {
     st.iterations++;
-    if (st.iterations > MAX_ITERATIONS) return { ok: false, message: 'the Newton iteration did not converge', directions: dirs };
+    if (st.iterations - st.iterationBase > MAX_ITERATIONS) return { ok: false, message: 'the Newton iteration did not converge', directions: dirs };
     groupTotals(c, n, ws.totals);
     logActivities(c, n, ws.totals, ws.logA);
     const k = dirs.k;
@@ -507,6 +515,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       if (pa !== 0) for (let j = 0; j < m; j++) d[j] += pa * s[a * m + j];
     }
     let largestStep = 0;
+    let majorStep = 0; // the same with growth too measured against the floor: what is left outside trace species
     const floor = RESOLUTION * c.total;
     for (let j = 0; j < m; j++) {
       const dj = d[j];
@@ -514,11 +523,13 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       let size = 0;
       for (let a = 0; a < k; a++) size += Math.abs(ws.pz[a] * s[a * m + j]);
       if (Math.abs(dj) <= DIRECTION_NOISE * size) continue;
-      largestStep = Math.max(largestStep, dj > 0 ? dj / n[j] : -dj / Math.max(n[j], floor));
+      const relative = Math.abs(dj) / Math.max(n[j], floor);
+      largestStep = Math.max(largestStep, dj > 0 ? dj / n[j] : relative);
+      majorStep = Math.max(majorStep, relative);
     }
-   
+
     if (largestStep <= STEP_TOLERANCE || (!strict && !(decrement > DECREMENT_TOLERANCE * c.total))) {
-      const release = negativeMultiplier(c, held, ws.logA, ws.g, locked, st.absent);
+      const release = negativeMultiplier(c, held, ws.logA, ws.g, locked);
       if (release < 0) return { ok: true, directions: dirs };
       held[release] = FREE;
       promoteImplied(c, held);
@@ -539,17 +550,25 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     let tPure = Infinity;
     let blocking = -1;
     let tMix = Infinity;
+    let emptying = -1;
     for (let j = 0; j < m; j++) {
       if (d[j] >= 0 || held[j] !== FREE) continue;
       const t = n[j] / -d[j];
       if (c.mixture[j]) {
-        if (n[j] > CLAMPABLE_AMOUNT * c.total) tMix = Math.min(tMix, t);
+        if (n[j] > CLAMPABLE_AMOUNT * c.total && t < tMix) {
+          tMix = t;
+          emptying = j;
+        }
       }
       else if (t < tPure) {
         tPure = t;
         blocking = j;
       }
     }
+    // The full Newton step would empty a member of a phase already dwindled to its phantom
+    // level: it would only creep towards zero from here (each step stops short of the
+    // boundary). Whether the phase is absent is for the caller's stability test to settle.
+    if (tMix <= 1 && dwindledGroup(c, n, emptying) >= 0) return { ok: false, message: 'a mole-fraction phase is dwindling away', directions: dirs };
     if (blocking >= 0 && tPure === 0) {
       // A phase at zero that this direction would make negative: hold it and recompute.
       hold(c, held, blocking);
@@ -590,23 +609,41 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     }
     if (!moved && !changed) {
       // Rounding noise: the step no longer changes anything resolvable. Close enough for the
-      // polish if the Newton step was small; otherwise give up.
-      if (largestStep <= STALL_STEP_TOLERANCE || (!strict && decrement <= STALL_DECREMENT_TOLERANCE * c.total)) return { ok: true, directions: dirs };
+      // polish if the Newton step was small, or small but for species below RESOLUTION of the
+      // total (their growth is the polish's to resolve); otherwise give up.
+      if (largestStep <= STALL_STEP_TOLERANCE || majorStep <= STALL_STEP_TOLERANCE || (!strict && decrement <= STALL_DECREMENT_TOLERANCE * c.total)) {
+        return { ok: true, directions: dirs };
+      }
       return { ok: false, message: 'the Newton iteration stalled', directions: dirs };
     }
   }
 }
 
 /**
+ * The mole-fraction group of species j if it carries a phantom (it could vanish) and its real
+ * amount is at most VANISH_FRACTION of the total, else -1. (A phase passing through a low
+ * point on its way elsewhere rarely goes that low; from NUCLEATION_FRACTION down to here the
+ * creep takes a few dozen steps.)
+ */
+function dwindledGroup(c: Compact, n: Float64Array, j: number): number {
+  if (j < 0) return -1;
+  const g = c.group[j];
+  if (g < 0 || !(c.phantom[g] > 0)) return -1;
+  let real = 0;
+  for (let i = 0; i < c.m; i++) if (c.group[i] === g) real += n[i];
+  return real <= VANISH_FRACTION * c.total ? g : -1;
+}
+
+/**
  * Lagrange multipliers of the held phases at a subspace optimum: g = Aᵀλ, with A the
  * rows (ν·ξ)_j of the held species (least squares through AAᵀ). λ_j < 0 means forming
- * phase j lowers G. Returns the species with the most negative multiplier (not the
- * locked one, nor a member of a phase held absent), or -1 when none is below
- * −MULTIPLIER_TOLERANCE. A held mixture species (a member of an absent phase) has no ln a;
- * its pure-phase value is used instead, which only shifts its own multiplier (its row is in
- * A), not those of the pure phases.
+ * phase j lowers G. Returns the pure phase with the most negative multiplier (not the
+ * locked one), or -1 when none is below −MULTIPLIER_TOLERANCE. A held mixture species (a
+ * member of an absent phase, or one whose zero such a phase forces) is never released here:
+ * whether its phase forms is for the tangent-plane test. It has no ln a; its pure-phase
+ * value is used instead, which only shifts its own multiplier when its row is in A.
  */
-export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array, g: Float64Array, locked: number, absent?: Uint8Array): number {
+export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array, g: Float64Array, locked: number): number {
   const { m, rho } = c;
   const rows: number[] = [];
   for (let j = 0; j < m; j++) if (held[j] === HELD) rows.push(j);
@@ -638,9 +675,7 @@ export function negativeMultiplier(c: Compact, held: Uint8Array, L: Float64Array
   let worst = -1;
   let min = -MULTIPLIER_TOLERANCE;
   for (let x = 0; x < w; x++) {
-    if (rows[x] === locked) continue;
-    const group = c.group[rows[x]];
-    if (absent !== undefined && group >= 0 && absent[group]) continue;
+    if (rows[x] === locked || c.mixture[rows[x]]) continue;
     if (rhs[x] < min) {
       min = rhs[x];
       worst = rows[x];

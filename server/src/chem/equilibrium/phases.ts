@@ -4,19 +4,16 @@
 // unstable one with its incipient composition.
 import { groupTotals, logActivities, PHANTOM_FRACTION, type Compact } from './compact';
 import { luFactor, luSolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
-import { AMOUNT_FLOOR, buildDirections, FREE, holdAtZero, NUCLEATION_FRACTION, RANK_TOLERANCE, release, type ExtentState } from './newton';
+import { AMOUNT_FLOOR, buildDirections, FREE, HELD, holdAtZero, NUCLEATION_FRACTION, RANK_TOLERANCE, release, VANISH_FRACTION, type Directions, type ExtentState } from './newton';
 
-/**
- * A pure phase left at most this fraction of the total when a mole-fraction phase is made
- * absent formed only alongside it (at the phantom's scale) and is set to zero with it.
- */
-export const VANISH_FRACTION = 1e-20;
 /** An absent mixture phase is stable if ln Σ (implied mole fractions) is at most this. */
 const STABILITY_TOLERANCE = 1e-9;
 /** Newton iterations, gradient tolerance and diagonal regularisation of the tangent-plane minimisation. */
 const STABILITY_ITERATIONS = 50;
 const STABILITY_GRADIENT = 1e-12;
 const STABILITY_REGULARISATION = 1e-14;
+/** Largest change (ln units) of any exponent of the log-sum-exp in one Newton step of the tangent-plane minimisation. */
+const STABILITY_MAX_STEP = 30;
 /** Step halvings of the backtracking line search of the tangent-plane minimisation. */
 const STABILITY_HALVINGS = 40;
 /** Directions that do not form the absent phase must have |g⁰| below this (ln units) at the held optimum. */
@@ -31,6 +28,12 @@ const FORMATION_START = 1e-30;
 const FORMATION_LIMIT = 1 - 1e-9;
 /** ... by this many bisections of ln ε (60 halve a range of ~70 in ln ε to below 1e-16). */
 const FORMATION_BISECTIONS = 60;
+/** Removing a dwindled phase along the reactions must take its members to zero within this fraction of their largest amount. */
+const REMOVAL_TOLERANCE = 1e-9;
+/** Entries of a formation direction below this fraction of its largest are rounding residue. */
+const FORMATION_NOISE = 1e-12;
+/** A mixture species of another phase that rounding would take to zero keeps this fraction of its amount. */
+const POSITIVE_FRACTION = 2 ** -40;
 
 /** Members of mole-fraction group g (compact indices). */
 function membersOf(c: Compact, g: number): number[] {
@@ -42,34 +45,102 @@ function membersOf(c: Compact, g: number): number[] {
 /**
  * Holds absent every mole-fraction phase that still carries its phantom (so it could vanish)
  * and whose real amount has dwindled to at most NUCLEATION_FRACTION of the total: its members
- * are set to exactly 0 and held (like a used-up solid; the reactions are then restricted to
- * directions that keep them at 0), and its phantom is removed. A pure phase left at most
- * VANISH_FRACTION of the total is set to 0 too. The held set is rebuilt with the absent
- * members first, so their constraints are the independent ones and a pure phase whose zero
- * they imply is marked as implied. Returns whether any phase was made absent.
+ * are brought to exactly 0 and held (like a used-up solid; the reactions are then restricted
+ * to directions that keep them at 0), and its phantom is removed. The members are removed
+ * along the reactions (a combination that keeps the held pure phases at zero), so the
+ * conservation laws still hold; a pure phase that goes with them, or is left at most
+ * VANISH_FRACTION of the total, is set to 0. The held set is rebuilt with the absent members
+ * first, so their constraints are the independent ones and a pure phase whose zero they
+ * imply is marked as implied.
+ * Not done (returns false, nothing changed) when the absence would force a dilute species
+ * (solute, gas at constant volume, member of the other phase) to zero, i.e. one that no
+ * remaining direction can change and that goes with the members: such a species exists only
+ * together with the phase, and forming a trace of both always lowers G (its ln n → −∞), so
+ * the phase cannot be absent at equilibrium. Returns whether any phase was made absent.
  */
 export function holdDwindledPhasesAbsent(c: Compact, st: ExtentState): boolean {
+  const { m } = c;
   const gone = [false, false];
   for (let g = 0; g < 2; g++) {
     if (!(c.phantom[g] > 0)) continue;
     let real = 0;
-    for (let j = 0; j < c.m; j++) if (c.group[j] === g) real += st.n[j];
+    for (let j = 0; j < m; j++) if (c.group[j] === g) real += st.n[j];
     gone[g] = real <= NUCLEATION_FRACTION * c.total;
   }
   if (!gone[0] && !gone[1]) return false;
+  const isMember = (j: number): boolean => c.group[j] >= 0 && gone[c.group[j]];
+  const isAbsent = (j: number): boolean => c.group[j] >= 0 && (gone[c.group[j]] || st.absent[c.group[j]] === 1);
+  const n = Float64Array.from(st.n);
+  const xi = Float64Array.from(st.xi);
+  removeAlongReactions(c, st.held, n, xi, isMember);
+  for (let j = 0; j < m; j++) if (isMember(j) || (!c.mixture[j] && n[j] <= VANISH_FRACTION * c.total)) n[j] = 0;
+  const held = new Uint8Array(m);
+  for (let j = 0; j < m; j++) if (isAbsent(j)) holdAtZero(c, held, j);
+  for (let j = 0; j < m; j++) if (held[j] === FREE && !c.mixture[j] && (st.held[j] !== FREE || n[j] === 0)) holdAtZero(c, held, j);
+  const dirs = buildDirections(c, held);
+  for (let j = 0; j < m; j++) {
+    if (held[j] !== FREE || !c.mixture[j] || n[j] > VANISH_FRACTION * c.total) continue;
+    if (!movable(dirs, m, j)) return false; // a dilute species that exists only with the phase
+    if (!(n[j] > 0)) n[j] = st.n[j] * POSITIVE_FRACTION; // rounding took it to zero: it must stay positive
+  }
+  st.n.set(n);
+  st.xi.set(xi);
+  st.held.set(held);
   for (let g = 0; g < 2; g++) {
     if (!gone[g]) continue;
-    for (let j = 0; j < c.m; j++) if (c.group[j] === g) st.n[j] = 0;
     c.groupInert[g] -= c.phantom[g];
     c.phantom[g] = 0;
     st.absent[g] = 1;
   }
-  for (let j = 0; j < c.m; j++) if (!c.mixture[j] && st.n[j] <= VANISH_FRACTION * c.total) st.n[j] = 0;
-  const wasHeld = Uint8Array.from(st.held);
-  st.held.fill(FREE);
-  for (let j = 0; j < c.m; j++) if (c.group[j] >= 0 && st.absent[c.group[j]]) holdAtZero(c, st.held, j);
-  for (let j = 0; j < c.m; j++) if (st.held[j] === FREE && (wasHeld[j] !== FREE || st.n[j] === 0)) holdAtZero(c, st.held, j);
+  st.iterationBase = st.iterations;
   return true;
+}
+
+/** Whether some direction changes species j (an entry above RANK_TOLERANCE of its direction's largest). */
+function movable(dirs: Directions, m: number, j: number): boolean {
+  for (let a = 0; a < dirs.k; a++) {
+    let largest = 0;
+    for (let i = 0; i < m; i++) largest = Math.max(largest, Math.abs(dirs.s[a * m + i]));
+    if (Math.abs(dirs.s[a * m + j]) > RANK_TOLERANCE * largest) return true;
+  }
+  return false;
+}
+
+/**
+ * Moves the amounts `n` (and extents `xi`) along the directions of the held set `held` by the
+ * combination that takes the members (isMember) to zero, when one exists (least squares on
+ * the members' columns, accepted if it removes them to REMOVAL_TOLERANCE of their amount).
+ * Other species follow; one that would go below zero (it went with the members) is set to zero.
+ */
+function removeAlongReactions(c: Compact, held: Uint8Array, n: Float64Array, xi: Float64Array, isMember: (j: number) => boolean): void {
+  const { m, rho } = c;
+  const members: number[] = [];
+  for (let j = 0; j < m; j++) if (isMember(j)) members.push(j);
+  const q = members.length;
+  let amount = 0;
+  for (const j of members) amount = Math.max(amount, n[j]);
+  if (q === 0 || !(amount > 0)) return;
+  const dirs = buildDirections(c, held);
+  const k = dirs.k;
+  const aug = new Float64Array(q * (k + 1));
+  for (let u = 0; u < q; u++) {
+    for (let a = 0; a < k; a++) aug[u * (k + 1) + a] = dirs.s[a * m + members[u]];
+    aug[u * (k + 1) + k] = -n[members[u]];
+  }
+  const e = reducedRowEchelonOnColumns(aug, q, k + 1, k);
+  for (let r = e.rank; r < q; r++) if (Math.abs(e.reduced[r * (k + 1) + k]) > REMOVAL_TOLERANCE * amount) return;
+  const alpha = new Float64Array(k);
+  for (let r = 0; r < e.rank; r++) alpha[e.pivotColumns[r]] = e.reduced[r * (k + 1) + k];
+  for (let a = 0; a < k; a++) {
+    const x = alpha[a];
+    if (x === 0) continue;
+    for (let j = 0; j < m; j++) {
+      const v = dirs.s[a * m + j];
+      if (v !== 0 && !isMember(j)) n[j] += x * v;
+    }
+    for (let r = 0; r < rho; r++) xi[r] += x * dirs.z[a * rho + r];
+  }
+  for (let j = 0; j < m; j++) if (!isMember(j) && n[j] < 0) n[j] = 0;
 }
 
 /** What the tangent-plane test found for an absent phase. */
@@ -88,25 +159,56 @@ export interface PhaseTest {
 
 /**
  * Tangent-plane test for an absent mole-fraction phase g (all its species held at zero), at
- * a held optimum of the rest (`logA`: ln a of the free species). Directions that keep the
- * other held phases at zero have gradient g⁰ (ln a of the absent species taken at their
- * pure-phase values); at the held optimum g⁰ = Ñλ with Ñ the absent species' columns of the
- * directions, and forming the phase with composition y changes G at the rate
- * Σ y_j (λ_j + ln y_j) over achievable compositions (y in the row space of Ñ). By convex
- * duality the least such rate is −min over u in the null space of Ñ of ln Σ_j exp(−λ_j − u_j),
- * so the phase stays absent iff that minimum is <= STABILITY_TOLERANCE. The minimum is found
- * by Newton's method on the (convex) log-sum-exp in the null-space coordinates. With all
- * the columns independent this is the familiar Σ_j exp(−λ_j) <= 1 (implied mole fractions
- * sum to at most one). When the phase is unstable, the softmax weights at the minimum are its
- * incipient composition y (the stationarity condition puts y in the row space of Ñ), and
- * solving Ñᵀα = y gives the direction that forms it.
+ * a held optimum of the rest (`logA`: ln a of the free species). The formation of the phase
+ * may go together with changes of the other species: free ones either way, a pure phase at
+ * zero only upwards, the members of another absent phase not at all (they stay at zero; its
+ * own test decides about it). The pure phases whose zero is an independent constraint of
+ * the optimum (HELD, non-negative multipliers) stay at zero: forming one as well cannot
+ * lower G faster. The others at zero (their zero implied by the absent members, or left
+ * free at zero) start free; when the best formation direction would take one of them below
+ * zero it is held too and the test repeated (an active set on those sign constraints).
  */
 export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Float64Array): PhaseTest {
-  const { m, rho } = c;
+  const { m } = c;
   const members = membersOf(c, g);
-  // The other held species, re-held without the members (a zero implied by the members is no longer implied).
   const others = new Uint8Array(m);
-  for (let j = 0; j < m; j++) if (st.held[j] !== FREE && c.group[j] !== g) holdAtZero(c, others, j);
+  // Members of another absent phase first (equality constraints), then the independent pure zeros.
+  for (let j = 0; j < m; j++) if (st.held[j] !== FREE && c.mixture[j] && c.group[j] !== g) holdAtZero(c, others, j);
+  for (let j = 0; j < m; j++) if (st.held[j] === HELD && !c.mixture[j]) holdAtZero(c, others, j);
+  for (let round = 0; round <= m; round++) {
+    const test = tangentPlane(c, g, members, others, logA);
+    if (test.stable || test.dn === undefined) return test;
+    // A species at zero (not a member) that the formation direction would take below zero.
+    const dn = test.dn;
+    let scale = 0;
+    for (let j = 0; j < m; j++) scale = Math.max(scale, Math.abs(dn[j]));
+    let blocking = -1;
+    for (let j = 0; j < m; j++) {
+      if (c.group[j] === g || others[j] !== FREE || st.n[j] > 0) continue;
+      if (dn[j] < -FORMATION_NOISE * scale && (blocking < 0 || dn[j] < dn[blocking])) blocking = j;
+    }
+    if (blocking < 0) return test;
+    holdAtZero(c, others, blocking);
+  }
+  return { stable: false };
+}
+
+/**
+ * The test proper, for the directions that keep the species held in `others` at zero. They
+ * have gradient g⁰ (ln a of the absent species taken at their pure-phase values); at the
+ * held optimum g⁰ = Ñλ with Ñ the absent species' columns of the directions, and forming the
+ * phase with composition y changes G at the rate Σ y_j (λ_j + ln y_j) over achievable
+ * compositions (y in the row space of Ñ). By convex duality the least such rate is −min over
+ * u in the null space of Ñ of ln Σ_j exp(−λ_j − u_j), so the phase stays absent iff that
+ * minimum is <= STABILITY_TOLERANCE. The minimum is found by Newton's method on the (convex)
+ * log-sum-exp in the null-space coordinates. With all the columns independent this is the
+ * familiar Σ_j exp(−λ_j) <= 1 (implied mole fractions sum to at most one). When the phase is
+ * unstable, the softmax weights at the minimum are its incipient composition y (the
+ * stationarity condition puts y in the row space of Ñ), and solving Ñᵀα = y gives the
+ * direction that forms it.
+ */
+function tangentPlane(c: Compact, g: number, members: readonly number[], others: Uint8Array, logA: Float64Array): PhaseTest {
+  const { m, rho } = c;
   const dirs = buildDirections(c, others);
   const k = dirs.k;
   const q = members.length;
@@ -158,7 +260,9 @@ export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Fl
   const perm = new Int32Array(count);
   for (let it = 0; it < STABILITY_ITERATIONS && current > STABILITY_TOLERANCE; it++) {
     if (count === 0) break;
-    // ∇ = −U w, ∇² = U (diag w − w wᵀ) Uᵀ
+    // ∇ = −U w, ∇² = U (diag w − w wᵀ) Uᵀ, the w-weighted covariance of the rows of U: formed
+    // as Σ w (U − Uw)(U − Uw)ᵀ, without the cancellation of Σ w U Uᵀ − (Uw)(Uw)ᵀ when w is
+    // nearly concentrated on one member.
     for (let b = 0; b < count; b++) {
       let sum = 0;
       for (let u = 0; u < q; u++) sum -= nullBasis[b * q + u] * w[u];
@@ -167,14 +271,8 @@ export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Fl
     for (let b = 0; b < count; b++) {
       for (let d = 0; d < count; d++) {
         let sum = 0;
-        let ub = 0;
-        let ud = 0;
-        for (let u = 0; u < q; u++) {
-          sum += nullBasis[b * q + u] * nullBasis[d * q + u] * w[u];
-          ub += nullBasis[b * q + u] * w[u];
-          ud += nullBasis[d * q + u] * w[u];
-        }
-        hess[b * count + d] = sum - ub * ud + (b === d ? STABILITY_REGULARISATION : 0);
+        for (let u = 0; u < q; u++) sum += w[u] * (nullBasis[b * q + u] + grad[b]) * (nullBasis[d * q + u] + grad[d]);
+        hess[b * count + d] = sum + (b === d ? STABILITY_REGULARISATION : 0);
       }
     }
     let norm = 0;
@@ -183,7 +281,14 @@ export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Fl
     const step = Float64Array.from(grad, (x) => -x);
     if (!luFactor(hess, count, perm)) break;
     luSolve(hess, count, perm, step);
-    let size = 1;
+    // Nearly flat directions give huge Newton steps: cap the change of any exponent.
+    let reach = 0;
+    for (let u = 0; u < q; u++) {
+      let change = 0;
+      for (let b = 0; b < count; b++) change += nullBasis[b * q + u] * step[b];
+      reach = Math.max(reach, Math.abs(change));
+    }
+    let size = reach > STABILITY_MAX_STEP ? STABILITY_MAX_STEP / reach : 1;
     const trial = new Float64Array(count);
     let next = current;
     for (let h = 0; h < STABILITY_HALVINGS; h++) {
@@ -218,6 +323,9 @@ export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Fl
     for (let j = 0; j < m; j++) dn[j] += x * dirs.s[a * m + j];
     for (let r = 0; r < rho; r++) dxi[r] += x * dirs.z[a * rho + r];
   }
+  // The members' changes are the composition itself: exact, where Ñᵀα is only exact to rounding
+  // of its largest entries (a member with a tiny mole fraction keeps its relative precision).
+  for (let u = 0; u < q; u++) dn[members[u]] = w[u];
   return { stable: false, dn, dxi, kappa };
 }
 
@@ -229,10 +337,11 @@ export function absentPhaseTest(c: Compact, st: ExtentState, g: number, logA: Fl
  * FORMATION_START and FORMATION_LIMIT of the largest amount that keeps every species
  * non-negative; G is then strictly below its value at the absent-phase optimum, so the
  * iteration cannot come back to it. The phase is then present again: its members are
- * released and its phantom restored. A member whose amount rounds to zero (an implied mole
- * fraction below the double range) is given AMOUNT_FLOOR of the total, which the polish,
- * referenced to n0, removes from the conservation laws again. Returns false (and changes
- * nothing) when no formation direction is known.
+ * released and its phantom restored, as is a pure phase at zero that the direction forms
+ * along with it. A member whose amount rounds to zero (an implied mole fraction below the
+ * double range) is given AMOUNT_FLOOR of the total, which the polish, referenced to n0,
+ * removes from the conservation laws again. Returns false (and changes no amount) when no
+ * formation direction is known or none can move.
  */
 export function formAbsentPhase(c: Compact, st: ExtentState, g: number, test: PhaseTest): boolean {
   const { dn, dxi, kappa } = test;
@@ -240,50 +349,52 @@ export function formAbsentPhase(c: Compact, st: ExtentState, g: number, test: Ph
   const { m } = c;
   const n = st.n;
   const members = membersOf(c, g);
+  let scale = 0;
+  for (let j = 0; j < m; j++) scale = Math.max(scale, Math.abs(dn[j]));
+  // Rounding residue of the combination on a species at zero is no change at all.
+  for (let j = 0; j < m; j++) if (n[j] === 0 && Math.abs(dn[j]) <= FORMATION_NOISE * scale) dn[j] = 0;
   let limit = Infinity;
-  for (let j = 0; j < m; j++) if (dn[j] < 0 && st.held[j] === FREE) limit = Math.min(limit, n[j] / -dn[j]);
+  for (let j = 0; j < m; j++) if (dn[j] < 0) limit = Math.min(limit, n[j] / -dn[j]);
   if (!Number.isFinite(limit)) limit = c.total;
   if (!(limit > 0)) return false;
   const trial = new Float64Array(m);
   const totals = new Float64Array(2);
   const logA = new Float64Array(m);
-  const isMember = new Uint8Array(m);
-  for (const j of members) isMember[j] = 1;
   // Totals as with the phase present (no phantom yet: the members' own amounts define it).
   const slope = (eps: number): number => {
-    for (let j = 0; j < m; j++) trial[j] = st.held[j] !== FREE && !isMember[j] ? 0 : n[j] + eps * dn[j];
+    for (let j = 0; j < m; j++) trial[j] = Math.max(n[j] + eps * dn[j], 0);
     groupTotals(c, trial, totals);
     logActivities(c, trial, totals, logA);
     let sum = -kappa;
-    for (let j = 0; j < m; j++) if (dn[j] !== 0 && (st.held[j] === FREE || isMember[j])) sum += dn[j] * logA[j];
+    for (let j = 0; j < m; j++) if (dn[j] !== 0) sum += dn[j] * logA[j];
     return sum;
   };
   let lo = Math.log(FORMATION_START * limit);
   let hi = Math.log(FORMATION_LIMIT * limit);
   let eps: number;
-  const atLimit = slope(Math.exp(hi));
-  if (atLimit < 0) eps = Math.exp(hi);
+  if (slope(Math.exp(hi)) < 0) eps = Math.exp(hi);
   else {
     for (let b = 0; b < FORMATION_BISECTIONS; b++) {
       const mid = 0.5 * (lo + hi);
-      const s = slope(Math.exp(mid));
-      if (s < 0) lo = mid;
+      if (slope(Math.exp(mid)) < 0) lo = mid;
       else hi = mid; // a NaN slope (not expected) also shrinks the range
     }
     eps = Math.exp(lo);
   }
   for (let j = 0; j < m; j++) {
-    if (dn[j] === 0 || (st.held[j] !== FREE && !isMember[j])) continue;
+    if (dn[j] === 0) continue;
     const after = n[j] + eps * dn[j];
-    if (c.mixture[j]) n[j] = after > 0 ? after : Math.max(n[j], AMOUNT_FLOOR * c.total);
+    if (c.group[j] === g) n[j] = after > 0 ? after : AMOUNT_FLOOR * c.total;
+    else if (c.mixture[j]) n[j] = after > 0 ? after : Math.max(n[j] * POSITIVE_FRACTION, AMOUNT_FLOOR * c.total);
     else n[j] = after > 0 ? after : 0;
   }
   for (const j of members) if (!(n[j] > 0)) n[j] = AMOUNT_FLOOR * c.total;
   for (let r = 0; r < c.rho; r++) st.xi[r] += eps * dxi[r];
   st.absent[g] = 0;
+  st.iterationBase = st.iterations;
   c.phantom[g] = PHANTOM_FRACTION * c.total;
   c.groupInert[g] += c.phantom[g];
-  for (const j of members) release(c, st.held, j);
+  for (let j = 0; j < m; j++) if (st.held[j] !== FREE && (c.group[j] === g || n[j] > 0)) release(c, st.held, j);
   return true;
 }
 

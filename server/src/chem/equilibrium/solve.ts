@@ -16,10 +16,11 @@ import {
   release,
   NUCLEATION_FRACTION,
   renucleate,
+  VANISH_FRACTION,
   type Directions,
   type ExtentState,
 } from './newton';
-import { absentPhaseTest, formAbsentPhase, holdDwindledPhasesAbsent, VANISH_FRACTION } from './phases';
+import { absentPhaseTest, formAbsentPhase, holdDwindledPhasesAbsent } from './phases';
 import { conservationLaws, polish } from './polish';
 import { GAS_GROUP, prepare, type Prepared } from './problem';
 import { solveSingleReaction } from './single';
@@ -51,9 +52,15 @@ const MAX_PHASE_CHANGES = 6;
  *   then a Newton polish in log amounts that gives trace species full relative precision
  *   and conservation to rounding (polish.ts) (`method: 'newton'`). A mole-fraction phase
  *   (gas at constant pressure, the liquid) that could vanish carries a phantom inert amount
- *   of PHANTOM_FRACTION of the total during the iterations, so its mole fractions stay
- *   defined; if its real amount ends below VANISH_FRACTION it is declared absent, its species
- *   are held at zero, and a final polish without the phantom makes the answer exact.
+ *   of PHANTOM_FRACTION of the total while it is present, so its mole fractions stay
+ *   defined. When it dwindles to where the iteration cannot settle it, it is held absent
+ *   instead (all its species exactly 0, its reactions restricted like those of a used-up
+ *   solid) and the rest is solved without it; at that optimum the tangent-plane test
+ *   (phases.ts: do the implied mole fractions sum to at most 1?) decides: stable, the phase
+ *   is absent; unstable, it must be present, and is formed along its incipient composition
+ *   and solved with. A present phase whose real amount ends below VANISH_FRACTION (where the
+ *   test agrees within its tolerance) is declared absent too, and a final polish without
+ *   the phantoms makes the answer exact.
  * Reactions that can run in neither direction from what is present are inactive, species
  * that can never form stay exactly 0, and of linearly dependent (consistent) reactions only
  * the first independent ones in input order carry extents. Never throws: invalid input gives
@@ -144,9 +151,11 @@ function solveGeneral(c: Compact, st: ExtentState, p: Prepared): { message?: str
  * (where trace species are exact) and one that should form is released for another round.
  * A mole-fraction phase is either present (with its phantom while it could vanish) or held
  * absent (ExtentState.absent: all members exactly 0, restricted like used-up solids):
- * - when an attempt fails (Newton or polish) with such a phase dwindled to its phantom
- *   amount, the phase is held absent and the rest is solved without it (its gain or loss in
- *   G at that level is below what the iteration can resolve, so it cannot settle it);
+ * - when an attempt fails (Newton or polish, or the extent iteration stops because its step
+ *   would empty a phase already below VANISH_FRACTION) with such a phase dwindled below
+ *   NUCLEATION_FRACTION of the total, the phase is held absent and the rest is solved
+ *   without it (its gain or loss in G at that level is below what the iteration can
+ *   resolve, so it cannot settle the question itself);
  * - at the optimum, each absent phase must pass the tangent-plane test (absentPhaseTest);
  *   one that fails must be present at equilibrium (the optimum with it absent would be the
  *   equilibrium otherwise), and is formed along its incipient composition, which lowers G
@@ -203,7 +212,7 @@ function settle(c: Compact, st: ExtentState, p: Prepared): { message?: string; i
     groupTotals(c, st.n, totals);
     logActivities(c, st.n, totals, logA);
     for (let j = 0; j < c.m; j++) if (st.held[j] !== FREE && c.mixture[j]) logA[j] = c.offset[j];
-    released = negativeMultiplier(c, st.held, logA, gradient, -1, st.absent);
+    released = negativeMultiplier(c, st.held, logA, gradient, -1);
     if (released >= 0) {
       release(c, st.held, released);
       continue;
