@@ -1,8 +1,9 @@
 // End-to-end test of the packaged extension in real VS Code: installs stillpoint-<version>.vsix into a
 // clean code-server profile (code-server from npm on Node 24, both under test/editors/.tools/), opens a
 // copy of examples/with-mistakes/step4-draft.eqnb in headless Debian Chromium (driven by playwright-core)
-// and checks, as a user would see it: the language mode, the squiggle and the Problems entry, the
-// balance quick fix, the batch hover with its equilibrium table, and the inlay hint on a batch header.
+// and checks, as a user would see it: the language mode, the Stillpoint status bar summary, the squiggle
+// and the Problems entry, the balance quick fix, the batch hover with its equilibrium table, the inlay
+// hint on a batch header, and that a killed language server is restarted (with its message) and answers.
 //   node test/editors/vscode-e2e.mjs          (after npm run package and test/editors/setup.sh)
 // Screenshots, code-server's output and VS Code's logs (extension host included) go to artifacts/editors/.
 // Exits non-zero, naming each failed step, when any step fails or the language server does not start.
@@ -107,6 +108,8 @@ const env = {
 const csArgs = ['--config', configFile, '--user-data-dir', dirs['user-data'], '--extensions-dir', dirs.extensions];
 
 let cs;
+/** The extension's folder in the profile's extensions folder, as the install created it. */
+let installedFolder;
 let browser;
 let page;
 const csLog = createWriteStream(artifact('code-server.log'));
@@ -259,12 +262,74 @@ function serverProcesses() {
   return ps.split('\n').filter((l) => l.includes(dirs.extensions) && l.includes('dist/server.js'));
 }
 
+/**
+ * This run's language-server processes, each with its parent: node running dist/server.js from the
+ * extension folder of this run's clean profile, in code-server's process group (code-server was started
+ * detached, so the group id is its pid). Nothing else on the machine can match all three.
+ */
+function serverTree() {
+  const rows = execFileSync('ps', ['-eo', 'pid=,ppid=,pgid=,args='], { encoding: 'utf8' })
+    .split('\n')
+    .map((l) => l.trim().match(/^(\d+)\s+(\d+)\s+(\d+)\s+(.*)$/))
+    .filter(Boolean)
+    .map(([, pid, ppid, pgid, args]) => ({ pid: Number(pid), ppid: Number(ppid), pgid: Number(pgid), args }));
+  const serverJs = path.join(dirs.extensions, installedFolder ?? `${EXTENSION_ID}-${pkg.version}`, 'dist', 'server.js');
+  return rows
+    .filter((r) => cs && r.pgid === cs.pid && r.args.includes(serverJs))
+    .map((r) => ({ ...r, parentArgs: rows.find((p) => p.pid === r.ppid)?.args ?? '' }));
+}
+
+/** The numbers in the problems item of VS Code's own status bar (all markers of the workspace). */
+async function workbenchProblemCounts() {
+  const label = (await page.locator('[id="status.problems"]').getAttribute('aria-label').catch(() => null)) ?? '';
+  const n = (word) => Number(label.match(new RegExp(`${word}: (\\d+)`))?.[1] ?? 0);
+  return { errors: n('Errors'), warnings: n('Warnings'), label };
+}
+
+/**
+ * How many reactions and batches the notebook has, read from its text by the format's plain rules (a
+ * statement starts in column 0; a reaction has an arrow, a batch starts with "batch"), comments removed.
+ */
+function notebookCounts(file) {
+  const statements = readFileSync(file, 'utf8')
+    .split('\n')
+    .map((l) => l.replace(/#.*$/, '').trimEnd())
+    .filter((l) => /^\S/.test(l));
+  return {
+    reactions: statements.filter((l) => !/^(species|batch)\s/.test(l) && /<=>|⇌|->|→/.test(l)).length,
+    batches: statements.filter((l) => /^batch\s/.test(l)).length,
+  };
+}
+
+/** The open hover that shows a batch's equilibrium table. */
+const batchHover = () => page.locator('.monaco-hover:not(.hidden)', { hasText: 'Equilibrium / mol' }).first();
+const shownHovers = async () => (await page.locator('.monaco-hover:not(.hidden)').allInnerTexts().catch(() => [])).map((t) => plain(t).slice(0, 200));
+
+/** Moves the mouse onto the batch name (from above it, so entering the word triggers the hover). */
+async function pointAtBatchName() {
+  const at = await textRect(BATCH_HEADER, 'scale-up');
+  if (!at) throw new Error(`the line "${BATCH_HEADER}" is not on screen`);
+  await page.mouse.move(at.x + at.width / 2, at.y - 60);
+  await page.mouse.move(at.x + at.width / 2, at.y + at.height / 2, { steps: 5 });
+}
+
+/** Hovers the batch name and waits (up to `timeout` ms) for the hover with its equilibrium table. */
+async function hoverBatch(timeout = STEP_TIMEOUT) {
+  await pointAtBatchName();
+  const hover = batchHover();
+  await hover.waitFor({ timeout }).catch(async () => {
+    throw new Error(`no hover with "Equilibrium / mol" within ${timeout} ms (hovers shown: ${JSON.stringify(await shownHovers())})`);
+  });
+  return hover;
+}
+
 try {
   await step('install the .vsix into a clean profile', true, async () => {
     const out = execFileSync(NODE24, [CS_ENTRY, ...csArgs, '--install-extension', VSIX], { env, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
     csLog.write(`--- --install-extension\n${out}\n`);
     const installed = readdirSync(dirs.extensions).filter((d) => d.startsWith(`${EXTENSION_ID}-`));
     if (installed.length !== 1) throw new Error(`expected one ${EXTENSION_ID}-* folder in the extensions folder, found: ${installed.join(', ') || 'none'}`);
+    installedFolder = installed[0];
     mark('vsix_installed');
     return `${installed[0]} (${out.trim().split('\n').pop()})`;
   });
@@ -345,6 +410,48 @@ try {
     return await screenshot('vscode-1-language-mode.png');
   });
 
+  await step('1b. the Stillpoint status bar item summarises the notebook', false, async () => {
+    // The item's DOM id is the extension's id (a status bar item created without an id of its own).
+    const item = page.locator(`.part.statusbar [id="${EXTENSION_ID}"]`);
+    await item.filter({ hasText: /reactions?,.*batch/ }).waitFor({ state: 'visible', timeout: STEP_TIMEOUT }).catch(async () => {
+      const items = await page.locator('.part.statusbar .statusbar-item').evaluateAll((els) => els.map((e) => `${e.id}: ${e.innerText.trim()}`));
+      throw new Error(`no visible status bar item ${EXTENSION_ID} reading "N reactions, M batches"; the status bar items: ${JSON.stringify(items)}`);
+    });
+    const want = notebookCounts(path.join(dirs.workspace, FILE_NAME));
+    // The summary and the diagnostics are separate messages from the server: wait until the item and
+    // VS Code's own problem counter agree, then compare (a mismatch that lasts fails the step).
+    let seen;
+    const deadline = Date.now() + STEP_TIMEOUT;
+    for (;;) {
+      const text = plain(await item.innerText()).replace(/\s+/g, ' ').trim();
+      const label = plain((await item.getAttribute('aria-label')) ?? '');
+      const m = text.match(/(\d+) reactions?, (\d+) batch(?:es)?, (\d+)$/);
+      const tip = label.match(/Stillpoint: (\d+) errors?, (\d+) warnings?/);
+      const bench = await workbenchProblemCounts();
+      seen = {
+        text, label, workbench: bench.label, workbenchErrors: bench.errors, workbenchWarnings: bench.warnings, warningIcon: await item.locator('.codicon-warning').count(),
+        reactions: m && Number(m[1]), batches: m && Number(m[2]), problems: m && Number(m[3]),
+        errors: tip && Number(tip[1]), warnings: tip && Number(tip[2]),
+      };
+      const agree = m && tip && seen.problems === seen.errors + seen.warnings && seen.errors === bench.errors && seen.warnings === bench.warnings;
+      if (agree || Date.now() > deadline) break;
+      await page.waitForTimeout(200);
+    }
+    summary.status_bar = seen;
+    await screenshot('vscode-1b-status-bar.png');
+    if (seen.reactions === null) throw new Error(`the item reads "${seen.text}", not "N reactions, M batches, <warning> P" (a notebook with problems)`);
+    if (seen.reactions !== want.reactions || seen.batches !== want.batches)
+      throw new Error(`the item reads "${seen.text}", but ${FILE_NAME} has ${want.reactions} reactions and ${want.batches} batch(es)`);
+    if (seen.warningIcon !== 1) throw new Error(`the item "${seen.text}" shows no warning icon before its problem count`);
+    if (seen.errors === null) throw new Error(`the item's tooltip/aria-label "${seen.label}" gives no "Stillpoint: E errors, W warnings"`);
+    if (seen.problems !== seen.errors + seen.warnings)
+      throw new Error(`the item counts ${seen.problems} problems, but its tooltip says ${seen.errors} errors + ${seen.warnings} warnings`);
+    if (seen.errors !== seen.workbenchErrors || seen.warnings !== seen.workbenchWarnings)
+      throw new Error(`the item says ${seen.errors} errors, ${seen.warnings} warnings; VS Code's problem counter says "${seen.workbench}"`);
+    if (seen.problems === 0) throw new Error(`the item counts no problems, but ${FILE_NAME} has deliberate mistakes`);
+    return `"${seen.text}" (${seen.errors} errors, ${seen.warnings} warnings), artifacts/editors/vscode-1b-status-bar.png`;
+  });
+
   await step('2. squiggle on the unbalanced equation, unbalanced-elements in Problems', false, async () => {
     const line = await viewLine(UNBALANCED).boundingBox();
     const squiggles = page.locator('.monaco-editor .squiggly-error');
@@ -391,15 +498,7 @@ try {
 
   await step('4. hovering the batch name shows the equilibrium table', false, async () => {
     await page.keyboard.press('Control+J'); // hide the panel: the batch lines get the room
-    const at = await textRect(BATCH_HEADER, 'scale-up');
-    if (!at) throw new Error(`the line "${BATCH_HEADER}" is not on screen`);
-    await page.mouse.move(at.x + at.width / 2, at.y - 60); // start off the word, so entering it triggers the hover
-    await page.mouse.move(at.x + at.width / 2, at.y + at.height / 2, { steps: 5 });
-    const hover = page.locator('.monaco-hover:not(.hidden)', { hasText: 'Equilibrium / mol' }).first();
-    await hover.waitFor({ timeout: STEP_TIMEOUT }).catch(async () => {
-      const any = await page.locator('.monaco-hover:not(.hidden)').allInnerTexts().catch(() => []);
-      throw new Error(`no hover with "Equilibrium / mol" (hovers shown: ${JSON.stringify(any.map((t) => t.slice(0, 200)))})`);
-    });
+    const hover = await hoverBatch();
     mark('batch_hover');
     summary.hover_text = plain(await hover.innerText()).slice(0, 2000);
     summary.hover_table_headers = (await hover.locator('table th').allInnerTexts()).map((t) => plain(t).trim());
@@ -435,6 +534,93 @@ try {
     if (!hint.startsWith('⇒')) throw new Error(`the text after the header is "${hint}", not a hint beginning "⇒"`);
     summary.inlay_hint = hint;
     return await screenshot('vscode-5-inlay-hint.png');
+  });
+
+  await step('6. a killed language server is restarted, with a message, and answers the next request', false, async () => {
+    const RESTARTED = 'The Stillpoint server stopped unexpectedly and has been restarted.';
+    await page.keyboard.press('Escape');
+    await page.mouse.move(5, 500);
+    // The hover works now (a control, so that a missing hover later is the restart's doing). A click in
+    // the text first: after step 4 dragged the hover's resize sash, VS Code shows no mouse hover in this
+    // editor until the next mouse-down in it (seen in code-server 4.139.1).
+    const spot = await textRect('amine 2.0 mol', 'mol');
+    if (!spot) throw new Error('the line "amine 2.0 mol" is not on screen');
+    await page.mouse.click(spot.x + spot.width / 2, spot.y + spot.height / 2);
+    await hoverBatch().catch((e) => {
+      throw new Error(`before the kill: ${e.message}`);
+    });
+    await page.keyboard.press('Escape');
+    await page.mouse.move(5, 500);
+    await batchHover().waitFor({ state: 'hidden', timeout: 5000 });
+
+    const before = serverTree();
+    if (before.length !== 1) throw new Error(`expected one language-server process of this run, found ${before.length}: ${JSON.stringify(before)}`);
+    const [old] = before;
+    if (!/--type=extensionHost/.test(old.parentArgs)) throw new Error(`the server (pid ${old.pid}) is not a child of the extension host: its parent is "${old.parentArgs.slice(0, 200)}"`);
+    if (await page.locator('.notification-toast', { hasText: RESTARTED }).count()) throw new Error('the restart message is on screen before the server was killed');
+    process.kill(old.pid, 'SIGKILL');
+    const killedAt = Date.now();
+    summary.server_killed = { pid: old.pid, parent: old.ppid, args: old.args.slice(0, 200) };
+
+    // (a) the client's message, as a toast (or, once the toast has gone, in the notifications center)
+    const toast = page.locator('.notification-toast', { hasText: RESTARTED }).first();
+    const seenToast = await toast.waitFor({ timeout: STEP_TIMEOUT }).then(() => true, () => false);
+    if (seenToast) {
+      summary.restart_message = { where: 'toast', text: plain(await toast.innerText()).trim(), ms_after_kill: Date.now() - killedAt };
+    } else {
+      await page.locator('[id="status.notifications"]').click(); // the bell: opens the notifications center
+      const inCenter = page.locator('.notifications-center .monaco-list-row', { hasText: RESTARTED }).first();
+      const found = await inCenter.waitFor({ timeout: 3000 }).then(() => true, () => false);
+      const all = await page.locator('.notifications-center .monaco-list-row, .notification-toast').allInnerTexts().catch(() => []);
+      if (!found) throw new Error(`no notification "${RESTARTED}" within ${STEP_TIMEOUT} ms of the kill (notifications: ${JSON.stringify(all.map((t) => plain(t).slice(0, 200)))}); the output channel says:\n${stillpointOutputErrors()}`);
+      summary.restart_message = { where: 'notifications center', text: plain(await inCenter.innerText()).trim() };
+    }
+
+    // (b) a new server process, under the same extension host, that stays up
+    const deadline = Date.now() + STEP_TIMEOUT;
+    let now = serverTree();
+    while (now.some((p) => p.pid === old.pid) || now.length === 0) {
+      if (Date.now() > deadline) {
+        throw new Error(now.some((p) => p.pid === old.pid)
+          ? `the killed server (pid ${old.pid}) is still running`
+          : `no new language-server process within ${STEP_TIMEOUT} ms of the kill; the output channel says:\n${stillpointOutputErrors()}`);
+      }
+      await new Promise((r) => setTimeout(r, 100));
+      now = serverTree();
+    }
+    if (now.length !== 1) throw new Error(`expected one new language-server process, found ${now.length}: ${JSON.stringify(now)}`);
+    const [fresh] = now;
+    summary.server_restarted = { pid: fresh.pid, parent: fresh.ppid, ms_after_kill: Date.now() - killedAt };
+    if (fresh.ppid !== old.ppid) throw new Error(`the new server (pid ${fresh.pid}) has parent ${fresh.ppid}, not the extension host ${old.ppid}`);
+    await new Promise((r) => setTimeout(r, SERVER_ALIVE_MS));
+    if (!serverTree().some((p) => p.pid === fresh.pid)) throw new Error(`the restarted server (pid ${fresh.pid}) exited within ${SERVER_ALIVE_MS} ms; the output channel says:\n${stillpointOutputErrors()}`);
+    mark('server_restarted');
+
+    // (c) the next request is answered by the new server: the batch hover with its equilibrium table.
+    // The restarted client registers its hover provider only once the new server has initialised; a
+    // mouse that arrives before that gets no hover at all (no request is sent). So while no hover opens,
+    // the mouse leaves and comes back (until the step's time is up); once one opens, it must come to
+    // show the table.
+    const hoverDeadline = Date.now() + STEP_TIMEOUT;
+    const attempts = [];
+    for (;;) {
+      attempts.push(Date.now() - killedAt);
+      await pointAtBatchName();
+      const opened = await page.locator('.monaco-hover:not(.hidden)').first().waitFor({ timeout: 3000 }).then(() => true, () => false);
+      if (opened) break;
+      if (Date.now() > hoverDeadline) throw new Error(`no hover opened on the batch name within ${STEP_TIMEOUT} ms of the new server starting (${attempts.length} attempts); the output channel says:\n${stillpointOutputErrors()}`);
+      await page.mouse.move(5, 500);
+    }
+    summary.hover_after_restart_attempts_ms_after_kill = attempts;
+    const hover = batchHover();
+    await hover.waitFor({ timeout: Math.max(hoverDeadline - Date.now(), 5000) }).catch(async () => {
+      throw new Error(`after the restart the batch name's hover shows no "Equilibrium / mol" table: ${JSON.stringify(await shownHovers())}`);
+    });
+    const text = plain(await hover.innerText());
+    if (!text.includes('batch scale-up')) throw new Error('the hover after the restart does not name the batch scale-up');
+    summary.hover_after_restart = text.slice(0, 300);
+    mark('hover_after_restart');
+    return `server pid ${old.pid} killed, pid ${fresh.pid} started ${summary.server_restarted.ms_after_kill} ms later; ${await screenshot('vscode-6-server-restarted.png')}`;
   });
 } catch (e) {
   summary.errors = [String((e && e.message) || e)];

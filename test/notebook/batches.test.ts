@@ -222,21 +222,28 @@ describe('closed vessel (constant volume)', () => {
     expect(resultOf(a, 'small').pressure).toBeGreaterThan(1.5 * BAR);
     expect(resultOf(a, 'large').pressure).toBeLessThan(1.5 * BAR);
     expect(resultOf(a, 'wet').pressure).toBeLessThan(1.5 * BAR);
-    expect(ranges(VESSEL)).toEqual(['L6 [9,13) pressure-caution']);
+    // Every vessel here gives off gas (A ⇌ 2 B from pure A), so each also gets gas-caution.
+    expect(ranges(VESSEL)).toEqual(['L6 [9,13) gas-caution', 'L6 [9,13) pressure-caution', 'L9 [9,14) gas-caution', 'L12 [9,12) gas-caution']);
   });
 
   it('a pressure written on a vessel batch is unused-pressure, on the pressure', () => {
     const text = VESSEL.replace('batch large at 25 °C', 'batch large at 25 °C, 2 bar');
-    expect(ranges(text)).toEqual(['L6 [9,13) pressure-caution', 'L8 [22,27) unused-pressure']);
+    expect(ranges(text)).toEqual(['L6 [9,13) gas-caution', 'L6 [9,13) pressure-caution', 'L8 [22,27) unused-pressure', 'L9 [9,14) gas-caution', 'L12 [9,12) gas-caution']);
     // and the computed pressure is used, not the written one (closed form as above)
     expectClose(resultOf(analyse(text), 'large').reactions[0].extent, extent(0.1), 1e-12, 'still 100 L');
   });
 
   it('the report states the final pressure and the caution; the headline gives P', () => {
     const report = batchReport(a, a.model.batches[0]);
-    expect(report.cautions.length).toBe(1);
+    // over 1.5 bar, and gas given off in a closed vessel: two cautions
+    expect(report.cautions.length).toBe(2);
+    expect(report.cautions.some((c) => c.includes('rated pressure'))).toBe(true);
+    expect(report.cautions.some((c) => c.includes('gives off'))).toBe(true);
     expect(report.headline).toMatch(/P = 2\.766 bar$/);
-    expect(batchReport(a, a.model.batches[1]).cautions).toEqual([]);
+    // under 1.5 bar: only the gas-evolution caution
+    const low = batchReport(a, a.model.batches[1]).cautions;
+    expect(low).toHaveLength(1);
+    expect(low[0]).toContain('gives off');
   });
 });
 
@@ -709,7 +716,7 @@ describe('property: random batches conserve elements and charge, and reach Q = K
       const a = analyse(gen.text);
       const where = `seed ${seed}:\n${gen.text}`;
       // a closed vessel may well pass 1.5 bar; nothing else may be reported
-      const unexpected = a.diagnostics.filter((d) => d.code !== 'pressure-caution');
+      const unexpected = a.diagnostics.filter((d) => !['pressure-caution', 'gas-caution', 'heat-caution'].includes(d.code));
       expect(unexpected.map((d) => `${d.code}: ${d.message}`), where).toEqual([]);
       for (const batch of a.model.batches) {
         const r = a.results.get(batch);

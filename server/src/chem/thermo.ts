@@ -217,3 +217,14 @@ export function hessData(terms: readonly { nu: number; data: FormationData | und
   }
   return { points: [], dH, dS, dCp };
 }
+
+/**
+ * ΔH° of a reaction at T (J/mol), or undefined when its data have none. ΔH° is taken at the
+ * temperature of the nearest given K (the van 't Hoff reference) or, with no K, at 298.15 K,
+ * and moved with constant ΔCp° when given (Kirchhoff): ΔH(T) = ΔH(T0) + ΔCp·(T − T0).
+ */
+export function enthalpyAt(data: ReactionThermo, T: number): number | undefined {
+  if (data.dH === undefined) return undefined;
+  const T0 = data.points.length > 0 ? nearestPoint(data.points, T).T : T_REF;
+  return data.dH + (data.dCp ?? 0) * (T - T0);
+}

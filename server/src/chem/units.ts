@@ -12,6 +12,7 @@ export type Dimension =
   | 'amount' // mol
   | 'molar-energy' // J/mol
   | 'molar-entropy' // J/(mol K)
+  | 'heat-capacity' // J/K
   | 'density' // kg/m^3
   | 'concentration' // mol/m^3
   | 'percent' // dimensionless fraction (98 % -> 0.98)
@@ -26,6 +27,7 @@ export const SI_UNIT_TEXT: Readonly<Record<Dimension, string>> = {
   amount: 'mol',
   'molar-energy': 'J/mol',
   'molar-entropy': 'J/(mol K)',
+  'heat-capacity': 'J/K',
   density: 'kg/m^3',
   concentration: 'mol/m^3',
   percent: '1',
@@ -67,6 +69,7 @@ const REFERENCE_UNITS: ReadonlyArray<[Exclude<Dimension, 'percent' | 'equivalent
   ['amount', 'mol'],
   ['molar-energy', 'J/mol'],
   ['molar-entropy', 'J/(mol K)'],
+  ['heat-capacity', 'J/K'],
   ['density', 'kg/m^3'],
   ['concentration', 'mol/m^3'],
 ];
@@ -235,6 +238,8 @@ export function describeDimension(d: Dimension): string {
       return 'molar energy (e.g. kJ/mol)';
     case 'molar-entropy':
       return 'molar entropy or heat capacity (e.g. J/(mol K))';
+    case 'heat-capacity':
+      return 'heat capacity (e.g. kJ/K)';
     case 'concentration':
       return 'concentration (e.g. mol/L)';
     case 'percent':
@@ -275,6 +280,8 @@ export function formatQuantity(value: number, dimension: Dimension): string {
       return `${trim(value / 1e3)} kJ/mol`;
     case 'molar-entropy':
       return `${trim(value)} J/(mol K)`;
+    case 'heat-capacity':
+      return `${trim(value / 1000)} kJ/K`;
     case 'density':
       return `${trim(value / 1e3)} g/mL`;
     case 'concentration':

@@ -16,6 +16,8 @@ interface JsonBatch {
   message?: string;
   species: { name: string; formula: string; phase: string; initial_mol: number; equilibrium_mol: number }[];
   reactions: { label: string; K: number; extent_mol: number }[];
+  heat_kJ: number | null;
+  adiabatic_rise_K: number | null;
 }
 
 export function solve(file: string, only: string | undefined, json: boolean, io: CliIo): number {
@@ -61,6 +63,8 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
       reactions: result
         ? result.reactions.map((r) => ({ label: r.input.reaction.label, K: Math.exp(r.input.lnK), extent_mol: r.extent }))
         : [],
+      heat_kJ: result && converged && result.heat.released !== undefined ? result.heat.released / 1000 : null,
+      adiabatic_rise_K: result && converged && result.adiabaticRise !== undefined ? result.adiabaticRise : null,
     });
     human.push(`== ${report.title}`, ...report.conditions.map((c) => `  ${c}`));
     if (!report.solved) {

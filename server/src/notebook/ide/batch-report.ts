@@ -29,6 +29,10 @@ export interface BatchReport {
 
 export const ESTIMATE_NOTE = 'Ideal equilibrium estimates, not a process-safety assessment.';
 
+/** Off-gas volumes are given at 1 atm and 25 °C (common practice for reporting gas evolution). */
+const OFF_GAS_T = 298.15;
+const OFF_GAS_P = 101325;
+
 export const ASSUMPTIONS: Readonly<Record<string, string>> = {
   g: 'gases ideal: a = y·P/P° with P° = 1 bar',
   l: 'liquids one ideal mixture: a = mole fraction',
@@ -177,14 +181,39 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
       }
     } else {
       summary.push(`Gas at equilibrium: ${num(result.gasMoles)} mol, ${num(result.gasVolume * 1000)} L as ideal gas at ${celsius(T)} and ${num(result.pressure / 1e5)} bar`);
-      const gasStart = inputs.species.reduce((sum, s, i) => sum + (s.phase === 'g' ? result.charged[i] : 0), 0);
-      if (result.gasMoles > gasStart * (1 + 1e-9) && gasStart >= 0) {
-        const evolved = result.gasMoles - gasStart;
+      if (result.gasFormed > 0 && result.gasFormed > 1e-9 * result.gasMoles) {
+        const evolved = result.gasFormed;
+        const offGasLitres = ((evolved * R * OFF_GAS_T) / OFF_GAS_P) * 1000;
+        summary.push(`Gas given off: ${num(evolved)} mol, ${num(offGasLitres)} L at 1 atm and 25 °C (off-gas)`);
         cautions.push(
-          `The step gives off ${num(evolved)} mol of gas (${num(((evolved * R * T) / result.pressure) * 1000)} L at ${celsius(T)}): vent it safely, and size the vent and off-gas handling under your site's process-safety review.`,
+          `The step gives off ${num(evolved)} mol of gas (${num(offGasLitres)} L at 1 atm and 25 °C): vent it safely, and size the vent and off-gas handling under your site's process-safety review.`,
         );
       }
     }
+  }
+  if (inputs.conditions.kind === 'constant-volume' && result.gasFormed > 1e-9 * Math.max(result.gasMoles, 1e-300)) {
+    cautions.push(
+      `The step gives off ${num(result.gasFormed)} mol of gas inside the closed vessel: check the vessel's rating and size its relief for the gas and the heat, under local codes and your site's process-safety review.`,
+    );
+  }
+  const heat = result.heat;
+  if (heat.released !== undefined) {
+    const kJ = heat.released / 1000;
+    summary.push(
+      `Heat ${kJ >= 0 ? 'released' : 'absorbed'} at equilibrium: **${num(Math.abs(kJ))} kJ**${heat.byStep.length > 1 ? ` (${heat.byStep.map((x) => `${x.label} ${num(x.released / 1000)} kJ`).join(', ')})` : ''}, from ΔH° and the extents`,
+    );
+    if (result.adiabaticRise !== undefined) {
+      summary.push(`Adiabatic temperature ${result.adiabaticRise >= 0 ? 'rise' : 'fall'}: ${num(Math.abs(result.adiabaticRise))} K (heat capacity ${num((inputs.heatCapacity ?? 0) / 1000)} kJ/K, ${inputs.heatCapacityFrom})`);
+      if (result.adiabaticRise > 50) {
+        cautions.push(
+          `If this heat stayed in the batch it would heat it by ${num(result.adiabaticRise)} K. Measure the heat release by calorimetry before scale-up, plan controlled addition and cooling, and follow your site's process-safety review.`,
+        );
+      }
+    } else {
+      summary.push('Adiabatic temperature rise: not known; give the batch a `heat capacity … kJ/K`, or Cp° to every species');
+    }
+  } else if (heat.unknown.length > 0) {
+    summary.push(`Heat: not known; give ΔH° to ${heat.unknown.map((l) => `\`${l}\``).join(', ')}`);
   }
   result.absent.forEach((i) => {
     const s = inputs.species[i];

@@ -4,7 +4,6 @@
 // units fitting the quantity being written; labels after `uses`; species
 // after `basis`. Every item carries a short detail.
 import { ELEMENTS } from '../../chem/elements';
-import { BATCH_KEYWORDS } from '../syntax/parser';
 import { KNOWN_PROPERTIES } from '../semantic/properties';
 import type { Analysis } from './analysis';
 
@@ -126,10 +125,11 @@ export function completions(analysis: Analysis, offset: number): CompletionResul
     }
     if (words[0] === 'basis') return result(speciesItems());
     if (words[0] === 'vessel' || words[0] === 'volume') return NUMBER_THEN_PARTIAL.test(before) ? result([...VOLUME_UNITS]) : result([]);
+    if (words[0] === 'heat') return NUMBER_THEN_PARTIAL.test(before) ? result([{ label: 'kJ/K', kind: 'unit', detail: 'heat capacity' }]) : result([]);
     if (NUMBER_THEN_PARTIAL.test(before)) return result([...AMOUNT_UNITS]);
     if (words.length <= 1) {
       return result([
-        ...BATCH_KEYWORDS.map((k) => ({ label: k, kind: 'property' as const, detail: KNOWN_PROPERTIES.batch[k]?.summary ?? '' })),
+        ...Object.entries(KNOWN_PROPERTIES.batch).map(([k, spec]) => ({ label: k, kind: 'property' as const, detail: spec.summary })),
         ...speciesItems(),
       ]);
     }

@@ -3,7 +3,7 @@
 // pressure), the reactions that can run, each reversible one's K at the batch
 // temperature, and the conditions (constant T and P, or a closed vessel).
 // Missing data become errors on the exact line, saying what to add.
-import { lnKAt, hessData, R, type FormationData, type KSource, type ReactionThermo } from '../../chem/thermo';
+import { enthalpyAt, lnKAt, hessData, R, type FormationData, type KSource, type ReactionThermo } from '../../chem/thermo';
 import { formatQuantity } from '../../chem/units';
 import { speciesIdentity } from './build';
 import { diagnostic, type Diagnostic } from './codes';
@@ -29,6 +29,8 @@ export interface BatchReaction {
   readonly reaction: ReactionModel;
   /** Stoichiometric numbers over BatchInputs.species (products +, reactants −). */
   readonly nu: readonly number[];
+  /** ΔH° at the batch temperature (J/mol), when the data give it. */
+  readonly dH?: number;
 }
 
 export interface ReversibleInput extends BatchReaction {
@@ -49,6 +51,10 @@ export interface BatchInputs {
   readonly basis?: number;
   /** How the reactions were chosen, for the hover. */
   readonly selection: 'uses' | 'automatic';
+  /** J/K: the batch's `heat capacity`, or Σ n·Cp° when every species has Cp°; undefined otherwise. */
+  readonly heatCapacity?: number;
+  /** Where the heat capacity came from, for the hover. */
+  readonly heatCapacityFrom?: string;
 }
 
 export type BatchInputResult = { readonly inputs?: BatchInputs; readonly diagnostics: readonly Diagnostic[] };
@@ -269,7 +275,7 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
   const reversible: ReversibleInput[] = [];
   for (const r of chosen) {
     if (!r.reversible) {
-      oneWay.push({ reaction: r, nu: nuOf(r) });
+      oneWay.push({ reaction: r, nu: nuOf(r), dH: enthalpyOf(r, T) });
       continue;
     }
     const k = kAt(r, model, T);
@@ -290,10 +296,11 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
       const a = reactionAnchor(r);
       out.push(diagnostic('k-extrapolated', `\`${r.label}\`: ${w}`, a.start, a.end));
     }
-    reversible.push({ reaction: r, nu: nuOf(r), lnK: k.lnK, source: k.source });
+    reversible.push({ reaction: r, nu: nuOf(r), lnK: k.lnK, source: k.source, dH: enthalpyOf(r, T) });
   }
   if (!reactionsOk) return { diagnostics: out };
   const basisIndex = basisAmount?.species ? index.get(speciesIdentity(basisAmount.species)) : undefined;
+  const heat = heatCapacityOf(batch, finished);
   return {
     inputs: {
       species: finished,
@@ -304,6 +311,8 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
       liquidVolume: batch.volume,
       basis: basisIndex,
       selection,
+      heatCapacity: heat?.value,
+      heatCapacityFrom: heat?.from,
     },
     diagnostics: out,
   };
@@ -362,4 +371,28 @@ export function hessThermo(r: ReactionModel): ReactionThermo | undefined {
     terms.push({ nu, data: conventionalZero ? { dfG: 0, dfH: 0, S: 0, Cp: 0 } : t.species.declared?.formation });
   }
   return hessData(terms);
+}
+
+/** ΔH° at T of a reaction: its own data, else Hess's law; undefined when unknown. */
+function enthalpyOf(r: ReactionModel, T: number): number | undefined {
+  const own = r.thermo ? enthalpyAt(r.thermo, T) : undefined;
+  if (own !== undefined) return own;
+  const hess = hessThermo(r);
+  return hess ? enthalpyAt(hess, T) : undefined;
+}
+
+/**
+ * The batch's heat capacity for an adiabatic rise: its `heat capacity` line, else Σ n·Cp° over
+ * the charged species when every one of them has Cp° (constant, from its declaration).
+ */
+function heatCapacityOf(batch: BatchModel, species: readonly BatchSpecies[]): { value: number; from: string } | undefined {
+  if (batch.heatCapacity !== undefined) return { value: batch.heatCapacity, from: 'the batch\'s heat capacity' };
+  let total = 0;
+  for (const s of species) {
+    if (s.charged <= 0) continue;
+    const cp = s.species.declared?.formation?.Cp;
+    if (cp === undefined) return undefined;
+    total += s.charged * cp;
+  }
+  return total > 0 ? { value: total, from: 'Σ n·Cp° of what is charged' } : undefined;
 }

@@ -11,6 +11,10 @@ import type { BatchInputs, ReversibleInput } from './batch-inputs';
 
 /** A closed vessel above this pressure (Pa) gets a caution (1.5 bar). */
 export const PRESSURE_CAUTION_PA = 1.5e5;
+/** An adiabatic temperature rise above this (K) gets a caution. */
+export const ADIABATIC_RISE_CAUTION_K = 50;
+/** Gas formed below this fraction of the charged amount is rounding, not evolution. */
+const GAS_EVOLUTION_FRACTION = 1e-9;
 
 export interface ReactionOutcome {
   readonly input: ReversibleInput;
@@ -43,6 +47,15 @@ export interface BatchResult {
   readonly conversion?: number;
   /** For each product of a used reaction: amount formed and the theoretical amount. */
   readonly yields: readonly { readonly index: number; readonly formed: number; readonly theoretical: number }[];
+  /**
+   * Heat released (J; negative when absorbed) by the steps, −Σ ΔH°·ξ, when every used
+   * reaction has ΔH°; otherwise `unknown` names those that lack it.
+   */
+  readonly heat: { readonly released?: number; readonly byStep: readonly { label: string; released: number }[]; readonly unknown: readonly string[] };
+  /** K: heat released ÷ heat capacity, when both are known. */
+  readonly adiabaticRise?: number;
+  /** mol of gas at equilibrium minus mol of gas charged (positive: the step gives off gas). */
+  readonly gasFormed: number;
 }
 
 const SOLVER_PHASE: Readonly<Record<string, SolverPhase>> = { g: 'g', l: 'l', s: 's', aq: 'aq' };
@@ -149,7 +162,29 @@ export function solveBatch(inputs: BatchInputs, cache: SolveCache): BatchResult 
       conversion = consumed / charged[inputs.basis];
     }
   }
+  const byStep: { label: string; released: number }[] = [];
+  const unknown: string[] = [];
+  const steps = [
+    ...inputs.oneWay.map((r, j) => ({ r, extent: oneWayExtents[j] })),
+    ...inputs.reversible.map((r, j) => ({ r, extent: result.status === 'converged' ? (result.extents[j] ?? 0) : 0 })),
+  ];
+  for (const { r, extent } of steps) {
+    if (r.dH === undefined) unknown.push(r.reaction.label);
+    else byStep.push({ label: r.reaction.label, released: -r.dH * extent });
+  }
+  const released = unknown.length === 0 ? byStep.reduce((sum, x) => sum + x.released, 0) : undefined;
+  const adiabaticRise = released !== undefined && inputs.heatCapacity !== undefined ? released / inputs.heatCapacity : undefined;
+  let gasCharged = 0;
+  let gasAtEnd = 0;
+  inputs.species.forEach((sp, i) => {
+    if (sp.phase !== 'g') return;
+    gasCharged += charged[i];
+    gasAtEnd += equilibrium[i];
+  });
   return {
+    heat: { released, byStep, unknown },
+    adiabaticRise,
+    gasFormed: gasAtEnd - gasCharged,
     inputs,
     status: result.status,
     message: result.message,
@@ -204,6 +239,31 @@ export function resultDiagnostics(batch: BatchModel, result: BatchResult): Diagn
       ),
     );
     return out;
+  }
+  const header2 = header;
+  if (result.adiabaticRise !== undefined && result.adiabaticRise > ADIABATIC_RISE_CAUTION_K) {
+    out.push(
+      diagnostic(
+        'heat-caution',
+        `if the heat of this step (${Number((result.heat.released! / 1000).toPrecision(4))} kJ) stayed in the batch it would heat it by ${Number(result.adiabaticRise.toPrecision(3))} K (adiabatic, ideal equilibrium estimate). Measure the heat release by calorimetry before scale-up, plan controlled addition and cooling, and follow your site's process-safety review.`,
+        header2.start,
+        header2.end,
+      ),
+    );
+  }
+  const gasCharged = result.inputs.species.reduce((sum, sp, i) => sum + (sp.phase === 'g' ? result.charged[i] : 0), 0);
+  const totalCharged = result.charged.reduce((a, b) => a + b, 0);
+  if (result.inputs.conditions.kind === 'constant-volume' && result.gasFormed > GAS_EVOLUTION_FRACTION * Math.max(totalCharged, gasCharged)) {
+    const vesselLine = batch.node.properties.find((p) => p.type === 'property' && p.keyText === 'vessel');
+    const where = vesselLine && vesselLine.type === 'property' ? (vesselLine.value ?? vesselLine) : header;
+    out.push(
+      diagnostic(
+        'gas-caution',
+        `this step gives off ${Number(result.gasFormed.toPrecision(3))} mol of gas inside a closed vessel (ideal equilibrium estimate). Check the vessel's rating and size its relief for the gas and the heat, and follow local codes and your site's process-safety review.`,
+        where.start,
+        where.end,
+      ),
+    );
   }
   if (result.inputs.conditions.kind === 'constant-volume' && result.pressure > PRESSURE_CAUTION_PA) {
     const vesselLine = batch.node.properties.find((p) => p.type === 'property' && p.keyText === 'vessel');

@@ -445,6 +445,7 @@ class Builder {
       volume,
       basis,
       uses,
+      heatCapacity: this.positive(props.values.get('heat capacity')?.[0], 'the heat capacity'),
     };
   }
 

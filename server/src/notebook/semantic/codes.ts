@@ -32,6 +32,8 @@ export const DIAGNOSTIC_CODES = {
   'k-extrapolated': { severity: 'warning', summary: 'a K used at another temperature with no ΔH°, taken as constant' },
   'no-convergence': { severity: 'error', summary: 'the equilibrium solve of a batch did not converge or its inputs are inconsistent' },
   'pressure-caution': { severity: 'warning', summary: 'a closed vessel whose computed pressure exceeds 1.5 bar' },
+  'heat-caution': { severity: 'warning', summary: 'a step whose adiabatic temperature rise would exceed 50 K' },
+  'gas-caution': { severity: 'warning', summary: 'a step that gives off gas inside a closed vessel' },
   'unknown-code': { severity: 'warning', summary: 'an `accept:` note names a code that does not exist' },
   'unused-accept': { severity: 'hint', summary: 'an `accept:` note that silences nothing on its line' },
   'unused-pressure': { severity: 'warning', summary: 'a batch pressure written for a closed vessel, where the pressure is computed instead' },

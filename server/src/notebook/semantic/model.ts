@@ -96,6 +96,8 @@ export interface BatchModel {
   readonly basis?: string;
   /** Labels listed by `uses`, resolved to reactions where they exist. */
   readonly uses?: readonly ReactionModel[];
+  /** J/K, from `heat capacity`. */
+  readonly heatCapacity?: number;
 }
 
 export interface NotebookModel {

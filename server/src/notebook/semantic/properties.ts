@@ -54,6 +54,7 @@ export const KNOWN_PROPERTIES: Readonly<Record<'species' | 'reaction' | 'batch',
     volume: quantity(['volume'], 'volume of the liquid, for concentrations (e.g. `volume 500 mL`)'),
     basis: names('the species that `equiv` amounts are relative to (e.g. `basis acid`)'),
     uses: names('the reactions to use, by label (e.g. `uses esterify, R2`)'),
+    'heat capacity': quantity(['heat-capacity'], 'heat capacity of the whole batch, for the adiabatic temperature rise (e.g. `heat capacity 2.5 kJ/K`)'),
   },
 };
 

@@ -38,9 +38,11 @@ const BYTE_ORDER_MARK = 0xfeff;
 
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
-export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses'] as const;
+export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat'] as const;
+/** Property keys written as two words: the first word, and the word that must follow it. */
+const TWO_WORD_KEYS: Readonly<Record<string, string>> = { log: 'K', heat: 'capacity' };
 /** Words that cannot be species names: they would read as statement or batch keywords. */
-export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses']);
+export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat']);
 /** Property keys whose value is a comma-separated list of names rather than a quantity. */
 export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
 
@@ -545,9 +547,10 @@ class Parser {
       return this.amountLine(cs, ce, words);
     }
     const key: Token[] = [];
-    if (keyWord === 'log' && words[1]?.text.startsWith('K')) {
-      const kEnd = words[1].start + (/^[^\s=]+/.exec(words[1].text)?.[0].length ?? 1);
-      key.push(token(text, 'keyword', first.start, first.start + 3), token(text, 'keyword', words[1].start, kEnd));
+    const second = TWO_WORD_KEYS[keyWord];
+    if (second !== undefined && words[1]?.text.startsWith(second)) {
+      const secondEnd = words[1].start + (/^[^\s=]+/.exec(words[1].text)?.[0].length ?? second.length);
+      key.push(token(text, 'keyword', first.start, first.start + keyWord.length), token(text, 'keyword', words[1].start, secondEnd));
     } else {
       key.push(token(text, 'keyword', first.start, first.start + keyWord.length));
     }
@@ -640,7 +643,7 @@ class Parser {
       pos = words[1].end;
     }
     if (phase) items.push(phase);
-    const value = this.quantity(pos, ce, `an amount after \`${split.species.text}\`, as in \`${split.species.text} 1.0 mol\` (or a batch keyword: ${BATCH_KEYWORDS.join(', ')})`, split.species);
+    const value = this.quantity(pos, ce, `an amount after \`${split.species.text}\`, as in \`${split.species.text} 1.0 mol\` (or a batch keyword: vessel, volume, basis, uses, heat capacity)`, split.species);
     if (value) items.push(value);
     return {
       children: items,
