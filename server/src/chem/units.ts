@@ -132,16 +132,9 @@ function parseUnitUncached(text: string): UnitResult {
     return { ok: false, message: `\`${trimmed}\` is not a unit` };
   }
   const m = math();
-  let unit: Unit;
-  try {
-    unit = m.Unit.parse(normaliseUnitText(trimmed)) as Unit;
-  } catch (e) {
-    const detail = e instanceof Error && !/not found/.test(e.message) ? ` (${e.message.replace(/\.$/, '')})` : '';
-    return { ok: false, message: `unknown unit \`${trimmed}\`${detail}` };
-  }
-  if ((unit as unknown as { value: unknown }).value !== null) {
-    return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };
-  }
+  const parsed = readUnit(m, trimmed);
+  if (!parsed.ok) return parsed;
+  const unit = parsed.unit;
   const unitText = normaliseUnitText(trimmed);
   for (const [dimension, reference] of REFERENCE_UNITS) {
     if (unit.equalBase(m.unit(reference))) {
@@ -195,16 +188,9 @@ export function parseUnitPower(text: string): UnitPowerResult {
   }
   if (!/^[A-Za-z(µμ°][A-Za-z0-9µμ °/*^·()\-−+.]*$/.test(trimmed)) return { ok: false, message: `\`${trimmed}\` is not a unit` };
   const m = math();
-  let unit: Unit;
-  try {
-    unit = m.Unit.parse(normaliseUnitText(trimmed)) as Unit;
-  } catch (e) {
-    const detail = e instanceof Error && !/not found/.test(e.message) ? ` (${e.message.replace(/\.$/, '')})` : '';
-    return { ok: false, message: `unknown unit \`${trimmed}\`${detail}` };
-  }
-  if ((unit as unknown as { value: unknown }).value !== null) {
-    return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };
-  }
+  const parsed = readUnit(m, trimmed);
+  if (!parsed.ok) return parsed;
+  const unit = parsed.unit;
   const dims = unit.dimensions;
   const siFactor = m.unit(1, normaliseUnitText(trimmed)).toSI().toNumber();
   if (dims.every((d) => d === 0)) return { ok: true, base: 'dimensionless', power: 0, siFactor };
@@ -229,6 +215,21 @@ export function parseUnitPower(text: string): UnitPowerResult {
     }
   }
   return { ok: false, message: `\`${trimmed}\` is not a power of a pressure or concentration unit` };
+}
+
+/** A valueless mathjs unit read from unit text, or why it cannot be read. */
+function readUnit(m: MathJsInstance, trimmed: string): { ok: true; unit: Unit } | { ok: false; message: string } {
+  let unit: Unit;
+  try {
+    unit = m.Unit.parse(normaliseUnitText(trimmed)) as Unit;
+  } catch (e) {
+    const detail = e instanceof Error && !/not found/.test(e.message) ? ` (${e.message.replace(/\.$/, '')})` : '';
+    return { ok: false, message: `unknown unit \`${trimmed}\`${detail}` };
+  }
+  if ((unit as unknown as { value: unknown }).value !== null) {
+    return { ok: false, message: `\`${trimmed}\` contains a number; write the number before the unit` };
+  }
+  return { ok: true, unit };
 }
 
 /** Human name of a dimension, for messages ("expected a temperature"). */

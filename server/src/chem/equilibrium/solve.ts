@@ -449,7 +449,8 @@ function build(
  * A result of the right shape for input that could not be solved at all: n holds the
  * initial amounts that are finite numbers (0 otherwise), every other array holds zeros.
  */
-function invalidShaped(problem: EquilibriumProblem, status: 'invalid' | 'failed', message: string): EquilibriumResult {
+/** A result that carries no answer (status 'invalid' or 'failed'): the inputs' amounts and zeros, never NaN. */
+export function invalidShaped(problem: EquilibriumProblem, status: 'invalid' | 'failed', message: string): EquilibriumResult {
   const species = problem && Array.isArray(problem.species) ? problem.species : [];
   const reactions = problem && Array.isArray(problem.reactions) ? problem.reactions : [];
   const zerosS = species.map(() => 0);

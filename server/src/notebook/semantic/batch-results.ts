@@ -4,7 +4,7 @@
 // key of their inputs, so re-analysing after an edit re-solves only the
 // batches the edit touched. Also derives what the chemist reads: conversion,
 // yields, final pressure, and the cautions that go with them.
-import { solveEquilibrium, type EquilibriumProblem, type EquilibriumResult, type SolverPhase } from '../../chem/equilibrium';
+import { resultWithoutAnswer, solveEquilibrium, type EquilibriumProblem, type EquilibriumResult, type SolverPhase } from '../../chem/equilibrium';
 import { diagnostic, type Diagnostic } from './codes';
 import type { BatchModel } from './model';
 import type { BatchInputs, ReversibleInput } from './batch-inputs';
@@ -94,24 +94,7 @@ function safeSolve(problem: EquilibriumProblem): EquilibriumResult {
   try {
     return solveEquilibrium(problem);
   } catch (e) {
-    const S = problem.species.length;
-    const R = problem.reactions.length;
-    return {
-      status: 'failed',
-      message: `internal solver error (${e instanceof Error ? e.message : String(e)}); please report this notebook`,
-      n: problem.species.map((s) => s.n0),
-      extents: new Array<number>(R).fill(0),
-      activities: new Array<number>(S).fill(0),
-      lnQ: new Array<number>(R).fill(0),
-      lnQ0: new Array<number>(R).fill(0),
-      pressure: 0,
-      gasMoles: 0,
-      gasVolume: 0,
-      absentPhases: [],
-      inactiveReactions: [],
-      iterations: 0,
-      method: 'none',
-    };
+    return resultWithoutAnswer(problem, 'failed', `internal solver error (${e instanceof Error ? e.message : String(e)}); please report this notebook`);
   }
 }
 
