@@ -4,6 +4,8 @@
 // 5,000-line notebook with 200 batches, analysed cold, and re-analysed after a
 // one-character edit with the caches warm; hovers on it; and, over the real
 // protocol, server startup to first diagnostics and hovers while typing.
+import { existsSync, readdirSync, statSync } from 'node:fs';
+import { join, resolve } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { createNotebookService } from '../notebook/ide/service';
 import { generateNotebook } from './generate';
@@ -75,6 +77,15 @@ report.push(
   `re-analyse after a one-character edit: median ${edit.toFixed(1)} ms over ${EDIT_RUNS} runs (target < ${DOCUMENT_TARGET_MS} ms: ${(edit / DOCUMENT_TARGET_MS).toFixed(2)} of budget)`,
   `hover: median ${(hover * 1000).toFixed(1)} µs over ${HOVER_RUNS} hovers, ${answered} answered (target < ${HOVER_TARGET_MS} ms: ${(hover / HOVER_TARGET_MS).toFixed(4)} of budget)`,
 );
+// The packaged extension's size, when `npm run package` has built one (the limit is 3 MB).
+const VSIX_LIMIT_BYTES = 3 * 1024 * 1024;
+const root = resolve(__dirname, '..');
+const vsix = existsSync(root) ? readdirSync(root).filter((f) => /^stillpoint-.*\.vsix$/.test(f)) : [];
+for (const f of vsix) {
+  const size = statSync(join(root, f)).size;
+  report.push(`package: ${f} is ${(size / 1024).toFixed(0)} KiB (limit 3 MB: ${(size / VSIX_LIMIT_BYTES).toFixed(3)} of budget)`);
+}
+if (vsix.length === 0) report.push('package: no .vsix built yet (run `npm run package` first to have its size here)');
 for (const line of report) console.log(line);
 void runEditorBenchmarks().then((lines) => {
   for (const line of lines) console.log(line);
