@@ -404,7 +404,7 @@ describe('parseFormula property tests', () => {
   const SUPERSCRIPT_DIGITS = '⁰¹²³⁴⁵⁶⁷⁸⁹';
   const MAX_DEPTH = 3;
 
-  /** Builds random formula text while recording the composition it stands for. */
+  /** Builds random formula text while keeping the composition it stands for. */
   class Generator {
     text = '';
     readonly composition = new Map<string, Rational>();
