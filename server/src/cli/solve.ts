@@ -18,6 +18,7 @@ interface JsonBatch {
   reactions: { label: string; K: number; extent_mol: number }[];
   heat_kJ: number | null;
   adiabatic_rise_K: number | null;
+  sweeps: { variable: string; unit: string; points: { value: number; conversion: number | null; K: number | null; pressure_bar: number | null; species: Record<string, number> }[] }[];
 }
 
 export function solve(file: string, only: string | undefined, json: boolean, io: CliIo): number {
@@ -65,6 +66,20 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
         : [],
       heat_kJ: result && converged && result.heat.released !== undefined ? result.heat.released / 1000 : null,
       adiabatic_rise_K: result && converged && result.adiabaticRise !== undefined ? result.adiabaticRise : null,
+      sweeps: (analysis.sweeps.get(b) ?? []).map((s) => ({
+        variable: s.sweep.label,
+        unit: s.sweep.unitText,
+        points: s.points.map((p) => {
+          const r = p.result?.status === 'converged' ? p.result : undefined;
+          return {
+            value: p.written,
+            conversion: r?.conversion ?? null,
+            K: r && r.inputs.reversible.length > 0 ? Math.exp(r.inputs.reversible[0].lnK) : null,
+            pressure_bar: r ? r.pressure / 1e5 : null,
+            species: r ? Object.fromEntries(r.inputs.species.map((sp, i) => [sp.label, r.equilibrium[i]])) : {},
+          };
+        }),
+      })),
     });
     human.push(`== ${report.title}`, ...report.conditions.map((c) => `  ${c}`));
     if (!report.solved) {
@@ -76,6 +91,7 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
     if (report.species) human.push('', textTable(report.species));
     if (report.reactions && report.reactions.rows.length > 0) human.push('', textTable(report.reactions));
     human.push('', ...report.summary.map((x) => `  ${x.replace(/\*\*/g, '').replace(/`/g, '')}`));
+    for (const sw of report.sweeps) human.push('', `  ${sw.title}`, textTable(sw.table));
     if (report.assumptions.length > 0) human.push(`  Assumptions: ${report.assumptions.join('; ')}.`);
     human.push('');
   }

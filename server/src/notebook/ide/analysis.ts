@@ -8,6 +8,7 @@ import { diagnostic, type Diagnostic } from '../semantic/codes';
 import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../semantic/model';
 import { batchInputs } from '../semantic/batch-inputs';
 import { resultDiagnostics, SolveCache, solveBatch, type BatchResult } from '../semantic/batch-results';
+import { batchSweeps, type SweepResult } from '../semantic/sweeps';
 import { LineIndex } from './line-index';
 import { applyAcceptances } from './suppression';
 
@@ -20,6 +21,8 @@ export interface Analysis {
   readonly lines: LineIndex;
   /** Each batch's equilibrium result, when its inputs were complete. */
   readonly results: ReadonlyMap<BatchModel, BatchResult>;
+  /** Each batch's sweeps (`vary` lines), solved point by point. */
+  readonly sweeps: ReadonlyMap<BatchModel, readonly SweepResult[]>;
   /** The statement at an offset (binary search), with its model item when it has one. */
   statementAt(offset: number): StatementAt | undefined;
 }
@@ -46,6 +49,7 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
   const model = buildModel(syntax.tree, syntax.errors, caches.balances);
   const batchDiagnostics: Diagnostic[] = [];
   const results = new Map<BatchModel, BatchResult>();
+  const sweeps = new Map<BatchModel, readonly SweepResult[]>();
   for (const batch of model.batches) {
     const inputs = batchInputs(batch, model);
     batchDiagnostics.push(...inputs.diagnostics);
@@ -53,6 +57,11 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
     const result = solveBatch(inputs.inputs, cache);
     results.set(batch, result);
     batchDiagnostics.push(...resultDiagnostics(batch, result));
+    if (batch.node.properties.some((p) => p.type === 'sweep')) {
+      const s = batchSweeps(batch, model, cache);
+      batchDiagnostics.push(...s.diagnostics);
+      sweeps.set(batch, s.sweeps);
+    }
   }
   const lines = new LineIndex(text);
   const diagnostics = applyAcceptances(
@@ -82,5 +91,5 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
     }
     return undefined;
   };
-  return { text, syntax, model, diagnostics, lines, results, statementAt };
+  return { text, syntax, model, diagnostics, lines, results, sweeps, statementAt };
 }

@@ -8,6 +8,7 @@ import type { KSource } from '../../chem/thermo';
 import { PHASE_NAMES, type BatchModel } from '../semantic/model';
 import type { BatchResult } from '../semantic/batch-results';
 import type { ReversibleInput } from '../semantic/batch-inputs';
+import type { SweepResult } from '../semantic/sweeps';
 import { R } from '../../chem/thermo';
 import type { Analysis } from './analysis';
 import type { Table } from './tables';
@@ -25,6 +26,8 @@ export interface BatchReport {
   readonly assumptions: readonly string[];
   /** One short line: the headline result (inlay hint, code lens). */
   readonly headline?: string;
+  /** One table per `vary` line. */
+  readonly sweeps: readonly { readonly title: string; readonly table: Table }[];
 }
 
 export const ESTIMATE_NOTE = 'Ideal equilibrium estimates, not a process-safety assessment.';
@@ -105,12 +108,49 @@ export function batchReport(analysis: Analysis, batch: BatchModel): BatchReport 
       summary: [],
       cautions: [],
       assumptions: [],
+      sweeps: [],
     };
   }
   if (result.status !== 'converged') {
-    return { title, conditions, solved: false, problem: `Not solved: ${result.message ?? 'the solver did not converge'}`, summary: [], cautions: [], assumptions: [] };
+    return { title, conditions, solved: false, problem: `Not solved: ${result.message ?? 'the solver did not converge'}`, summary: [], cautions: [], assumptions: [], sweeps: [] };
   }
-  return solvedReport(title, conditions, result);
+  return { ...solvedReport(title, conditions, result), sweeps: (analysis.sweeps.get(batch) ?? []).map((s) => sweepTable(s, result)) };
+}
+
+/**
+ * A sweep as a table: the variable, then the conversion of the basis species, each product's
+ * yield, the pressure where gases take part, and the first reaction's K, at every point.
+ */
+export function sweepTable(s: SweepResult, base: BatchResult): { title: string; table: Table } {
+  const { inputs } = base;
+  const basis = inputs.basis;
+  const products = base.yields.map((y) => y.index);
+  // The pressure column, unless the sweep's own variable already is the (constant) pressure.
+  const hasGas = inputs.species.some((sp) => sp.phase === 'g') && !(s.sweep.variable.kind === 'pressure' && inputs.conditions.kind === 'constant-pressure');
+  const firstReaction = inputs.reversible[0]?.reaction.label;
+  const header = [`${s.sweep.label} / ${s.sweep.unitText}`];
+  if (basis !== undefined && base.conversion !== undefined) header.push(`Conversion of ${inputs.species[basis].label}`);
+  for (const i of products) header.push(`Yield of ${inputs.species[i].label}`);
+  if (hasGas) header.push('P / bar');
+  if (firstReaction) header.push(`K (${firstReaction})`);
+  const rows = s.points.map((p) => {
+    const r = p.result;
+    const row = [num(p.written)];
+    if (!r || r.status !== 'converged') return [...row, ...header.slice(1).map(() => 'not solved')];
+    if (basis !== undefined && base.conversion !== undefined) row.push(r.conversion !== undefined ? percent(r.conversion) : '—');
+    for (const i of products) {
+      const y = r.yields.find((x) => x.index === i);
+      const start = r.afterOneWay[i];
+      row.push(y && y.theoretical > start ? percent(Math.max(0, (y.formed - start) / (y.theoretical - start))) : '—');
+    }
+    if (hasGas) row.push(num(r.pressure / 1e5));
+    if (firstReaction) row.push(num(Math.exp(r.inputs.reversible[0].lnK)));
+    return row;
+  });
+  return {
+    title: `Sweep of ${s.sweep.label} (${s.points.length} point${s.points.length === 1 ? '' : 's'})`,
+    table: { header, align: header.map((_, i) => (i === 0 ? 'r' : 'r')), rows },
+  };
 }
 
 function solvedReport(title: string, conditions: string[], result: BatchResult): BatchReport {
@@ -224,7 +264,7 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
   const chargedFrom = inputs.species.filter((s) => s.chargedFrom).map((s) => `${s.label}: ${s.chargedFrom}`);
   if (chargedFrom.length > 0) summary.push(`Amounts converted: ${chargedFrom.join('; ')}`);
   const assumptions = [...phasesPresent].map((p) => ASSUMPTIONS[p]).filter((a): a is string => a !== undefined);
-  return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline };
+  return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline, sweeps: [] };
 }
 
 function directionOf(lnQ0: number, lnK: number): string {

@@ -25,6 +25,7 @@ import type {
   ReactionNode,
   SpeciesNode,
   StatementNode,
+  SweepNode,
   SyntaxElement,
   SyntaxError,
   TermNode,
@@ -38,11 +39,11 @@ const BYTE_ORDER_MARK = 0xfeff;
 
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
-export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat'] as const;
+export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat', 'vary'] as const;
 /** Property keys written as two words: the first word, and the word that must follow it. */
 const TWO_WORD_KEYS: Readonly<Record<string, string>> = { log: 'K', heat: 'capacity' };
 /** Words that cannot be species names: they would read as statement or batch keywords. */
-export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat']);
+export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat', 'vary']);
 /** Property keys whose value is a comma-separated list of names rather than a quantity. */
 export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
 
@@ -546,6 +547,7 @@ class Parser {
     if (context === 'batch' && !(BATCH_KEYWORDS as readonly string[]).includes(keyWord)) {
       return this.amountLine(cs, ce, words);
     }
+    if (context === 'batch' && keyWord === 'vary' && first.text === 'vary') return this.sweepLine(words);
     const key: Token[] = [];
     const second = TWO_WORD_KEYS[keyWord];
     if (second !== undefined && words[1]?.text.startsWith(second)) {
@@ -630,6 +632,85 @@ class Parser {
     if (keyText === 'basis' && names.length > 1) {
       this.error('`basis` names one species', names[1].start, names[names.length - 1].end);
     }
+  }
+
+  /** `vary VARIABLE from A to B [UNIT] step S` | `vary VARIABLE in A, B, C [UNIT]`. */
+  private sweepLine(words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
+    const { text } = this;
+    const keyword = token(text, 'keyword', words[0].start, words[0].end);
+    const items: SyntaxElement[] = [keyword];
+    const usage = 'expected `vary VARIABLE from A to B step S` or `vary VARIABLE in A, B, C`, with VARIABLE one of T, P, vessel or a species of the batch';
+    const variable = words[1] ? token(text, 'name', words[1].start, words[1].end) : undefined;
+    if (!variable) this.error(usage, keyword.start, keyword.end);
+    else items.push(variable);
+    let from: Token | undefined;
+    let to: Token | undefined;
+    let step: Token | undefined;
+    let unit: Token | undefined;
+    const list: Token[] = [];
+    const rest = words.slice(2);
+    const isNumber = (w: Word): boolean => NUMBER_PREFIX.exec(w.text.replace(/,$/, ''))?.[0].length === w.text.replace(/,$/, '').length;
+    const unitParts: Word[] = [];
+    if (rest[0]?.text === 'from') {
+      items.push(token(text, 'keyword', rest[0].start, rest[0].end));
+      let i = 1;
+      const takeNumber = (): Token | undefined => {
+        const w = rest[i];
+        if (!w || !isNumber(w)) return undefined;
+        i++;
+        return token(text, 'number', w.start, w.end);
+      };
+      from = takeNumber();
+      if (rest[i]?.text === 'to') items.push(token(text, 'keyword', rest[i].start, rest[i++].end));
+      to = takeNumber();
+      while (rest[i] && rest[i].text !== 'step') unitParts.push(rest[i++]);
+      if (rest[i]?.text === 'step') {
+        items.push(token(text, 'keyword', rest[i].start, rest[i++].end));
+        step = takeNumber();
+      }
+      if (i < rest.length) {
+        this.error(`unexpected \`${text.slice(rest[i].start, rest[rest.length - 1].end)}\`; ${usage}`, rest[i].start, rest[rest.length - 1].end);
+        items.push(token(text, 'error', rest[i].start, rest[rest.length - 1].end));
+      }
+      if (!from || !to || !step) this.error(`a range needs numbers after \`from\`, \`to\` and \`step\`; ${usage}`, (variable ?? keyword).start, words[words.length - 1].end);
+    } else if (rest[0]?.text === 'in') {
+      items.push(token(text, 'keyword', rest[0].start, rest[0].end));
+      let i = 1;
+      for (; i < rest.length && isNumber(rest[i]); i++) {
+        const w = rest[i];
+        const bare = w.text.endsWith(',') ? w.end - 1 : w.end;
+        const t = token(text, 'number', w.start, bare);
+        list.push(t);
+        items.push(t);
+        if (bare < w.end) items.push(token(text, 'comma', bare, w.end));
+      }
+      while (i < rest.length) unitParts.push(rest[i++]);
+      if (list.length === 0) this.error(`a list needs numbers after \`in\`; ${usage}`, rest[0].start, rest[0].end);
+    } else if (variable) {
+      this.error(usage, variable.start, words[words.length - 1].end);
+      if (rest.length > 0) items.push(token(text, 'error', rest[0].start, rest[rest.length - 1].end));
+    }
+    if (unitParts.length > 0) {
+      unit = token(text, 'unit', unitParts[0].start, unitParts[unitParts.length - 1].end);
+      items.push(unit);
+    }
+    for (const t of [from, to, step]) if (t) items.push(t);
+    return {
+      children: items,
+      build: (children): SweepNode => ({
+        type: 'sweep',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        keyword,
+        variable,
+        from,
+        to,
+        step,
+        list,
+        unit,
+      }),
+    };
   }
 
   private amountLine(cs: number, ce: number, words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {

@@ -76,7 +76,23 @@ export interface AmountNode extends NodeBase {
   readonly value?: QuantityNode;
 }
 
-export type PropertyLine = PropertyNode | AmountNode | ErrorLineNode;
+/**
+ * `vary VARIABLE from A to B [UNIT] step S` or `vary VARIABLE in A, B, C [UNIT]` under a batch:
+ * a sweep of the batch over one variable (T, P, vessel, or a species amount).
+ */
+export interface SweepNode extends NodeBase {
+  readonly type: 'sweep';
+  readonly keyword: Token;
+  readonly variable?: Token;
+  /** `from` ... `to` ... `step` numbers, or the `in` list. */
+  readonly from?: Token;
+  readonly to?: Token;
+  readonly step?: Token;
+  readonly list: readonly Token[];
+  readonly unit?: Token;
+}
+
+export type PropertyLine = PropertyNode | AmountNode | SweepNode | ErrorLineNode;
 
 /** `species NAME = FORMULA [(PHASE)]` with its property lines. */
 export interface SpeciesNode extends NodeBase {
@@ -123,7 +139,7 @@ export interface FileNode extends NodeBase {
   readonly statements: readonly StatementNode[];
 }
 
-export type Node = FileNode | StatementNode | PropertyNode | AmountNode | TermNode | QuantityNode;
+export type Node = FileNode | StatementNode | PropertyNode | AmountNode | SweepNode | TermNode | QuantityNode;
 
 export interface SyntaxError {
   readonly code: 'syntax' | 'line-too-long';

@@ -1,0 +1,166 @@
+// Sweeps: `vary T from 40 to 120 °C step 10` (or `vary EtOH in 1, 2, 3 equiv`)
+// under a batch re-solves the batch at each value of one variable — the
+// temperature, the pressure, the vessel volume, or one species' amount — and
+// tabulates the headline quantities. Each point is an ordinary batch solve, so
+// it goes through the same inputs, solver and memoised cache.
+import { parseNumber, parseUnit, type Dimension } from '../../chem/units';
+import type { SweepNode } from '../syntax/tree';
+import { diagnostic, type Diagnostic } from './codes';
+import type { BatchAmount, BatchModel, NotebookModel } from './model';
+import { batchInputs } from './batch-inputs';
+import { solveBatch, type BatchResult, type SolveCache } from './batch-results';
+
+/** Most points one sweep may have. */
+export const MAX_SWEEP_POINTS = 1000;
+
+export type SweepVariable =
+  | { readonly kind: 'temperature' }
+  | { readonly kind: 'pressure' }
+  | { readonly kind: 'vessel' }
+  | { readonly kind: 'amount'; readonly amount: BatchAmount };
+
+export interface SweepModel {
+  readonly node: SweepNode;
+  readonly variable: SweepVariable;
+  /** How the variable is shown: `T`, `P`, `vessel`, or the species as written. */
+  readonly label: string;
+  readonly unitText: string;
+  readonly dimension: Dimension;
+  /** The values as written (in `unitText`) and in SI. */
+  readonly written: readonly number[];
+  readonly values: readonly number[];
+}
+
+const AMOUNT_DIMENSIONS: readonly Dimension[] = ['amount', 'mass', 'volume', 'equivalents', 'concentration', 'pressure'];
+
+/** Reads a `vary` line into a sweep, or reports what is wrong with it on the exact text. */
+export function readSweep(node: SweepNode, batch: { amounts: readonly BatchAmount[]; volume?: number }): { sweep?: SweepModel; diagnostics: Diagnostic[] } {
+  const out: Diagnostic[] = [];
+  const fail = (message: string, at: { start: number; end: number }): { diagnostics: Diagnostic[] } => {
+    out.push(diagnostic('bad-sweep', message, at.start, at.end));
+    return { diagnostics: out };
+  };
+  const v = node.variable;
+  // A line without its numbers already has a syntax error; nothing more to say about it.
+  if (!v || (node.list.length === 0 && !(node.from && node.to && node.step))) return { diagnostics: out };
+  let variable: SweepVariable;
+  let expected: readonly Dimension[];
+  if (v.text === 'T') {
+    variable = { kind: 'temperature' };
+    expected = ['temperature'];
+  } else if (v.text === 'P') {
+    variable = { kind: 'pressure' };
+    expected = ['pressure'];
+  } else if (v.text === 'vessel') {
+    variable = { kind: 'vessel' };
+    expected = ['volume'];
+  } else {
+    const amount = batch.amounts.find((a) => a.node.species.text === v.text);
+    if (!amount) return fail(`\`${v.text}\` is neither T, P, vessel nor a species with an amount in this batch`, v);
+    variable = { kind: 'amount', amount };
+    expected = AMOUNT_DIMENSIONS;
+  }
+  if (!node.unit) return fail(`a sweep of \`${v.text}\` needs a unit after its numbers (e.g. \`${expected[0] === 'temperature' ? '°C' : expected[0] === 'pressure' ? 'bar' : expected[0] === 'volume' ? 'L' : 'mol'}\`)`, v);
+  const unit = parseUnit(node.unit.text);
+  if (!unit.ok) return fail(unit.message, node.unit);
+  if (!expected.includes(unit.dimension)) return fail(`\`${node.unit.text}\` does not fit \`${v.text}\``, node.unit);
+  const number = (t: { text: string; start: number; end: number }): number | undefined => {
+    const n = parseNumber(t.text);
+    if (!n.ok) {
+      out.push(diagnostic('bad-sweep', n.message, t.start, t.end));
+      return undefined;
+    }
+    return n.value;
+  };
+  const written: number[] = [];
+  if (node.list.length > 0) {
+    for (const t of node.list) {
+      const n = number(t);
+      if (n === undefined) return { diagnostics: out };
+      written.push(n);
+    }
+  } else if (node.from && node.to && node.step) {
+    const a = number(node.from);
+    const b = number(node.to);
+    const s = number(node.step);
+    if (a === undefined || b === undefined || s === undefined) return { diagnostics: out };
+    if (s <= 0) return fail('the step must be positive', node.step);
+    const count = Math.floor((Math.abs(b - a) + 1e-9 * s) / s) + 1;
+    if (count > MAX_SWEEP_POINTS) return fail(`this sweep has ${count} points; at most ${MAX_SWEEP_POINTS} are allowed`, node.step);
+    const direction = b >= a ? 1 : -1;
+    for (let i = 0; i < count; i++) written.push(a + direction * i * s);
+  } else {
+    return { diagnostics: out };
+  }
+  const values = written.map((w) => unit.toSI(w));
+  for (let i = 0; i < values.length; i++) {
+    const bad =
+      (variable.kind === 'temperature' && values[i] <= 0) ||
+      ((variable.kind === 'pressure' || variable.kind === 'vessel') && values[i] <= 0) ||
+      (variable.kind === 'vessel' && batch.volume !== undefined && values[i] <= batch.volume) ||
+      (variable.kind === 'amount' && values[i] < 0);
+    if (bad) {
+      return fail(
+        variable.kind === 'temperature'
+          ? 'a temperature in the sweep is at or below absolute zero'
+          : variable.kind === 'amount'
+            ? 'an amount in the sweep is negative'
+            : variable.kind === 'vessel' && batch.volume !== undefined
+              ? 'a vessel in the sweep is no larger than the liquid volume'
+              : 'a value in the sweep is not positive',
+        node.list[i] ?? node.from ?? v,
+      );
+    }
+  }
+  return { sweep: { node, variable, label: v.text, unitText: node.unit.text, dimension: unit.dimension, written, values }, diagnostics: out };
+}
+
+export interface SweepPoint {
+  readonly written: number;
+  readonly result?: BatchResult;
+}
+
+export interface SweepResult {
+  readonly sweep: SweepModel;
+  readonly points: readonly SweepPoint[];
+}
+
+/** The batch as it would be with the sweep's variable at `value` (SI). */
+function variant(batch: BatchModel, sweep: SweepModel, value: number): BatchModel {
+  switch (sweep.variable.kind) {
+    case 'temperature':
+      return { ...batch, temperature: value };
+    case 'pressure':
+      return { ...batch, pressure: value, pressureIsDefault: false };
+    case 'vessel':
+      return { ...batch, vessel: value };
+    case 'amount': {
+      const target = sweep.variable.amount;
+      return { ...batch, amounts: batch.amounts.map((a) => (a === target ? { ...a, value, dimension: sweep.dimension } : a)) };
+    }
+  }
+}
+
+/** Reads a batch's `vary` lines, and solves the batch at every point of each readable one. */
+export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: SolveCache): { sweeps: SweepResult[]; diagnostics: Diagnostic[] } {
+  const diagnostics: Diagnostic[] = [];
+  const sweeps: SweepModel[] = [];
+  for (const line of batch.node.properties) {
+    if (line.type !== 'sweep') continue;
+    const r = readSweep(line, batch);
+    diagnostics.push(...r.diagnostics);
+    if (r.sweep) sweeps.push(r.sweep);
+  }
+  return { sweeps: solveSweeps(batch, sweeps, model, cache), diagnostics };
+}
+
+/** Solves the batch at every point of each sweep. */
+export function solveSweeps(batch: BatchModel, sweeps: readonly SweepModel[], model: NotebookModel, cache: SolveCache): SweepResult[] {
+  return sweeps.map((sweep) => ({
+    sweep,
+    points: sweep.values.map((value, i) => {
+      const inputs = batchInputs(variant(batch, sweep, value), model).inputs;
+      return { written: sweep.written[i], result: inputs ? solveBatch(inputs, cache) : undefined };
+    }),
+  }));
+}
