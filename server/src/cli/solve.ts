@@ -18,6 +18,7 @@ interface JsonBatch {
   reactions: { label: string; K: number; extent_mol: number }[];
   heat_kJ: number | null;
   adiabatic_rise_K: number | null;
+  targets: { goal: string; variable: string; unit: string; value: number | null; reachable: boolean }[];
   sweeps: { variable: string; unit: string; points: { value: number; conversion: number | null; K: number | null; pressure_bar: number | null; species: Record<string, number> }[] }[];
 }
 
@@ -66,6 +67,13 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
         : [],
       heat_kJ: result && converged && result.heat.released !== undefined ? result.heat.released / 1000 : null,
       adiabatic_rise_K: result && converged && result.adiabaticRise !== undefined ? result.adiabaticRise : null,
+      targets: (analysis.targets.get(b) ?? []).map((t) => ({
+        goal: `${t.target.goal}${t.target.species ? ` of ${t.target.species}` : ''} = ${t.target.goal === 'pressure' ? `${t.target.value / 1e5} bar` : `${t.target.value * 100} %`}`,
+        variable: t.target.label,
+        unit: t.target.unitText,
+        value: t.values.length > 0 ? t.values[0] : null,
+        reachable: t.values.length > 0,
+      })),
       sweeps: (analysis.sweeps.get(b) ?? []).map((s) => ({
         variable: s.sweep.label,
         unit: s.sweep.unitText,
@@ -91,6 +99,7 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
     if (report.species) human.push('', textTable(report.species));
     if (report.reactions && report.reactions.rows.length > 0) human.push('', textTable(report.reactions));
     human.push('', ...report.summary.map((x) => `  ${x.replace(/\*\*/g, '').replace(/`/g, '')}`));
+    for (const t of report.targets) human.push(`  ${t.replace(/\*\*/g, '')}`);
     for (const sw of report.sweeps) human.push('', `  ${sw.title}`, textTable(sw.table));
     if (report.assumptions.length > 0) human.push(`  Assumptions: ${report.assumptions.join('; ')}.`);
     human.push('');

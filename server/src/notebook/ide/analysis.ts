@@ -9,6 +9,7 @@ import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../s
 import { batchInputs } from '../semantic/batch-inputs';
 import { resultDiagnostics, SolveCache, solveBatch, type BatchResult } from '../semantic/batch-results';
 import { batchSweeps, type SweepResult } from '../semantic/sweeps';
+import { batchTargets, type TargetResult } from '../semantic/targets';
 import { LineIndex } from './line-index';
 import { applyAcceptances } from './suppression';
 
@@ -23,6 +24,8 @@ export interface Analysis {
   readonly results: ReadonlyMap<BatchModel, BatchResult>;
   /** Each batch's sweeps (`vary` lines), solved point by point. */
   readonly sweeps: ReadonlyMap<BatchModel, readonly SweepResult[]>;
+  /** Each batch's targets (`target` lines), with the values that meet them. */
+  readonly targets: ReadonlyMap<BatchModel, readonly TargetResult[]>;
   /** The statement at an offset (binary search), with its model item when it has one. */
   statementAt(offset: number): StatementAt | undefined;
 }
@@ -50,6 +53,7 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
   const batchDiagnostics: Diagnostic[] = [];
   const results = new Map<BatchModel, BatchResult>();
   const sweeps = new Map<BatchModel, readonly SweepResult[]>();
+  const targets = new Map<BatchModel, readonly TargetResult[]>();
   for (const batch of model.batches) {
     const inputs = batchInputs(batch, model);
     batchDiagnostics.push(...inputs.diagnostics);
@@ -61,6 +65,11 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
       const s = batchSweeps(batch, model, cache);
       batchDiagnostics.push(...s.diagnostics);
       sweeps.set(batch, s.sweeps);
+    }
+    if (batch.node.properties.some((p) => p.type === 'target')) {
+      const t = batchTargets(batch, model, cache);
+      batchDiagnostics.push(...t.diagnostics);
+      targets.set(batch, t.targets);
     }
   }
   const lines = new LineIndex(text);
@@ -91,5 +100,5 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
     }
     return undefined;
   };
-  return { text, syntax, model, diagnostics, lines, results, sweeps, statementAt };
+  return { text, syntax, model, diagnostics, lines, results, sweeps, targets, statementAt };
 }

@@ -9,6 +9,7 @@ import { PHASE_NAMES, type BatchModel } from '../semantic/model';
 import type { BatchResult } from '../semantic/batch-results';
 import type { ReversibleInput } from '../semantic/batch-inputs';
 import type { SweepResult } from '../semantic/sweeps';
+import type { TargetResult } from '../semantic/targets';
 import { R } from '../../chem/thermo';
 import type { Analysis } from './analysis';
 import type { Table } from './tables';
@@ -28,6 +29,8 @@ export interface BatchReport {
   readonly headline?: string;
   /** One table per `vary` line. */
   readonly sweeps: readonly { readonly title: string; readonly table: Table }[];
+  /** One line per `target` line: where the goal is met, or why not. */
+  readonly targets: readonly string[];
 }
 
 export const ESTIMATE_NOTE = 'Ideal equilibrium estimates, not a process-safety assessment.';
@@ -109,12 +112,28 @@ export function batchReport(analysis: Analysis, batch: BatchModel): BatchReport 
       cautions: [],
       assumptions: [],
       sweeps: [],
+      targets: [],
     };
   }
   if (result.status !== 'converged') {
-    return { title, conditions, solved: false, problem: `Not solved: ${result.message ?? 'the solver did not converge'}`, summary: [], cautions: [], assumptions: [], sweeps: [] };
+    return { title, conditions, solved: false, problem: `Not solved: ${result.message ?? 'the solver did not converge'}`, summary: [], cautions: [], assumptions: [], sweeps: [], targets: [] };
   }
-  return { ...solvedReport(title, conditions, result), sweeps: (analysis.sweeps.get(batch) ?? []).map((s) => sweepTable(s, result)) };
+  return {
+    ...solvedReport(title, conditions, result),
+    sweeps: (analysis.sweeps.get(batch) ?? []).map((s) => sweepTable(s, result)),
+    targets: (analysis.targets.get(batch) ?? []).map(targetLine),
+  };
+}
+
+/** A target's outcome in one line: where the goal is met, or that it cannot be, and the best value. */
+export function targetLine(t: TargetResult): string {
+  const m = t.target;
+  const goal = m.goal === 'pressure' ? `pressure = ${num(m.value / 1e5)} bar` : `${m.goal} of ${m.species} = ${percent(m.value)}`;
+  const range = `${num(m.from)} to ${num(m.to)} ${m.unitText}`;
+  if (t.values.length === 1) return `Target ${goal}: reached at ${m.label} = **${num(t.values[0])} ${m.unitText}** (searched ${range})`;
+  if (t.values.length > 1) return `Target ${goal}: reached at ${t.values.length} values of ${m.label}: ${t.values.map((v) => `${num(v)} ${m.unitText}`).join(', ')} (searched ${range})`;
+  const best = t.best ? `; the closest is ${m.goal === 'pressure' ? `${num(t.best.reached / 1e5)} bar` : percent(t.best.reached)} at ${m.label} = ${num(t.best.value)} ${m.unitText}` : '';
+  return `Target ${goal}: cannot be reached with ${m.label} from ${range}${best}`;
 }
 
 /**
@@ -264,7 +283,7 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
   const chargedFrom = inputs.species.filter((s) => s.chargedFrom).map((s) => `${s.label}: ${s.chargedFrom}`);
   if (chargedFrom.length > 0) summary.push(`Amounts converted: ${chargedFrom.join('; ')}`);
   const assumptions = [...phasesPresent].map((p) => ASSUMPTIONS[p]).filter((a): a is string => a !== undefined);
-  return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline, sweeps: [] };
+  return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline, sweeps: [], targets: [] };
 }
 
 function directionOf(lnQ0: number, lnK: number): string {

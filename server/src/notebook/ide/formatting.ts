@@ -104,11 +104,11 @@ function statementLines(analysis: Analysis, s: StatementNode): LineText[] {
     return '';
   };
   const width = (x: string): number => Array.from(x).length;
-  const keyWidth = Math.max(0, ...props.filter((p) => p.type !== 'error-line' && p.type !== 'sweep').map((p) => width(keyOf(p))));
+  const keyWidth = Math.max(0, ...props.filter((p) => p.type !== 'error-line' && p.type !== 'sweep' && p.type !== 'target').map((p) => width(keyOf(p))));
   const numberWidth = Math.max(0, ...props.map((p) => (p.type === 'amount' && p.value ? width(p.value.number.text) : 0)));
   for (const p of props) {
     // A sweep line keeps its own layout (its words are already single-spaced by convention).
-    if (p.type === 'error-line' || p.type === 'sweep') continue;
+    if (p.type === 'error-line' || p.type === 'sweep' || p.type === 'target') continue;
     const bounds = lineBounds(analysis, p.children.find((c) => c.type !== 'token' || (c.kind !== 'whitespace' && c.kind !== 'newline'))?.start ?? p.start);
     const key = keyOf(p);
     const pad = ' '.repeat(keyWidth - width(key));

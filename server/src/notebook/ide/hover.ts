@@ -231,6 +231,7 @@ function batchMarkdown(b: BatchModel, analysis: Analysis): string {
   if (report.species) lines.push('', markdownTable(report.species));
   if (report.reactions && report.reactions.rows.length > 0) lines.push('', markdownTable(report.reactions));
   if (report.summary.length > 0) lines.push('', ...report.summary.map((x) => `- ${x}`));
+  if (report.targets.length > 0) lines.push('', ...report.targets.map((x) => `- ${x}`));
   for (const sw of report.sweeps) lines.push('', `**${sw.title}**`, '', markdownTable(sw.table));
   if (report.assumptions.length > 0) lines.push('', `_Assumptions: ${report.assumptions.join('; ')}._`);
   return lines.join('\n');

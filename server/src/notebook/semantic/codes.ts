@@ -32,6 +32,7 @@ export const DIAGNOSTIC_CODES = {
   'k-extrapolated': { severity: 'warning', summary: 'a K used at another temperature with no ΔH°, taken as constant' },
   'no-convergence': { severity: 'error', summary: 'the equilibrium solve of a batch did not converge or its inputs are inconsistent' },
   'pressure-caution': { severity: 'warning', summary: 'a closed vessel whose computed pressure exceeds 1.5 bar' },
+  'bad-target': { severity: 'error', summary: 'a `target` line that cannot be read or searched' },
   'bad-sweep': { severity: 'error', summary: 'a `vary` line that cannot be read or swept' },
   'heat-caution': { severity: 'warning', summary: 'a step whose adiabatic temperature rise would exceed 50 K' },
   'gas-caution': { severity: 'warning', summary: 'a step that gives off gas inside a closed vessel' },

@@ -33,6 +33,15 @@ export interface SweepModel {
 
 const AMOUNT_DIMENSIONS: readonly Dimension[] = ['amount', 'mass', 'volume', 'equivalents', 'concentration', 'pressure'];
 
+/** T, P, vessel, or a species with an amount line, with the units that fit it. */
+export function resolveVariable(name: string, batch: { amounts: readonly BatchAmount[] }): { variable: SweepVariable; expected: readonly Dimension[] } | undefined {
+  if (name === 'T') return { variable: { kind: 'temperature' }, expected: ['temperature'] };
+  if (name === 'P') return { variable: { kind: 'pressure' }, expected: ['pressure'] };
+  if (name === 'vessel') return { variable: { kind: 'vessel' }, expected: ['volume'] };
+  const amount = batch.amounts.find((a) => a.node.species.text === name);
+  return amount ? { variable: { kind: 'amount', amount }, expected: AMOUNT_DIMENSIONS } : undefined;
+}
+
 /** Reads a `vary` line into a sweep, or reports what is wrong with it on the exact text. */
 export function readSweep(node: SweepNode, batch: { amounts: readonly BatchAmount[]; volume?: number }): { sweep?: SweepModel; diagnostics: Diagnostic[] } {
   const out: Diagnostic[] = [];
@@ -43,23 +52,9 @@ export function readSweep(node: SweepNode, batch: { amounts: readonly BatchAmoun
   const v = node.variable;
   // A line without its numbers already has a syntax error; nothing more to say about it.
   if (!v || (node.list.length === 0 && !(node.from && node.to && node.step))) return { diagnostics: out };
-  let variable: SweepVariable;
-  let expected: readonly Dimension[];
-  if (v.text === 'T') {
-    variable = { kind: 'temperature' };
-    expected = ['temperature'];
-  } else if (v.text === 'P') {
-    variable = { kind: 'pressure' };
-    expected = ['pressure'];
-  } else if (v.text === 'vessel') {
-    variable = { kind: 'vessel' };
-    expected = ['volume'];
-  } else {
-    const amount = batch.amounts.find((a) => a.node.species.text === v.text);
-    if (!amount) return fail(`\`${v.text}\` is neither T, P, vessel nor a species with an amount in this batch`, v);
-    variable = { kind: 'amount', amount };
-    expected = AMOUNT_DIMENSIONS;
-  }
+  const resolved = resolveVariable(v.text, batch);
+  if (!resolved) return fail(`\`${v.text}\` is neither T, P, vessel nor a species with an amount in this batch`, v);
+  const { variable, expected } = resolved;
   if (!node.unit) return fail(`a sweep of \`${v.text}\` needs a unit after its numbers (e.g. \`${expected[0] === 'temperature' ? '°C' : expected[0] === 'pressure' ? 'bar' : expected[0] === 'volume' ? 'L' : 'mol'}\`)`, v);
   const unit = parseUnit(node.unit.text);
   if (!unit.ok) return fail(unit.message, node.unit);
@@ -125,8 +120,8 @@ export interface SweepResult {
   readonly points: readonly SweepPoint[];
 }
 
-/** The batch as it would be with the sweep's variable at `value` (SI). */
-function variant(batch: BatchModel, sweep: SweepModel, value: number): BatchModel {
+/** The batch as it would be with the variable at `value` (SI, in `dimension`). */
+export function variant(batch: BatchModel, sweep: { variable: SweepVariable; dimension: Dimension }, value: number): BatchModel {
   switch (sweep.variable.kind) {
     case 'temperature':
       return { ...batch, temperature: value };

@@ -26,6 +26,7 @@ import type {
   SpeciesNode,
   StatementNode,
   SweepNode,
+  TargetNode,
   SyntaxElement,
   SyntaxError,
   TermNode,
@@ -39,11 +40,11 @@ const BYTE_ORDER_MARK = 0xfeff;
 
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
-export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat', 'vary'] as const;
+export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target'] as const;
 /** Property keys written as two words: the first word, and the word that must follow it. */
 const TWO_WORD_KEYS: Readonly<Record<string, string>> = { log: 'K', heat: 'capacity' };
 /** Words that cannot be species names: they would read as statement or batch keywords. */
-export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat', 'vary']);
+export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target']);
 /** Property keys whose value is a comma-separated list of names rather than a quantity. */
 export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
 
@@ -548,6 +549,7 @@ class Parser {
       return this.amountLine(cs, ce, words);
     }
     if (context === 'batch' && keyWord === 'vary' && first.text === 'vary') return this.sweepLine(words);
+    if (context === 'batch' && keyWord === 'target' && first.text === 'target') return this.targetLine(words, ce);
     const key: Token[] = [];
     const second = TWO_WORD_KEYS[keyWord];
     if (second !== undefined && words[1]?.text.startsWith(second)) {
@@ -711,6 +713,94 @@ class Parser {
         unit,
       }),
     };
+  }
+
+  /** `target GOAL [of SPECIES] = X UNIT by VARIABLE [from A to B UNIT]`. */
+  private targetLine(words: Word[], ce: number): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
+    const { text } = this;
+    const usage =
+      'expected `target conversion of SPECIES = X % by VARIABLE [from A to B UNIT]`, `target yield of PRODUCT = X % by …` or `target pressure = X bar by …`';
+    const keyword = token(text, 'keyword', words[0].start, words[0].end);
+    const items: SyntaxElement[] = [keyword];
+    let i = 1;
+    const goalWord = words[i];
+    let goal: Token | undefined;
+    let species: Token | undefined;
+    let value: QuantityNode | undefined;
+    let variable: Token | undefined;
+    let from: Token | undefined;
+    let to: Token | undefined;
+    let unit: Token | undefined;
+    const bad = (at: Word | undefined): void => {
+      const s = at ? at.start : keyword.start;
+      this.error(usage, s, at ? ce : keyword.end);
+      if (at) items.push(token(text, 'error', at.start, ce));
+    };
+    const build = (children: SyntaxElement[]): TargetNode => ({
+      type: 'target',
+      start: children[0].start,
+      end: children[children.length - 1].end,
+      children,
+      keyword,
+      goal,
+      species,
+      value,
+      variable,
+      from,
+      to,
+      unit,
+    });
+    if (!goalWord || !['conversion', 'yield', 'pressure'].includes(goalWord.text)) {
+      bad(goalWord);
+      return { children: items, build };
+    }
+    goal = token(text, 'keyword', goalWord.start, goalWord.end);
+    items.push(goal);
+    i++;
+    if (goal.text !== 'pressure') {
+      if (words[i]?.text !== 'of' || !words[i + 1]) {
+        bad(words[i]);
+        return { children: items, build };
+      }
+      items.push(token(text, 'keyword', words[i].start, words[i].end));
+      species = token(text, 'name', words[i + 1].start, words[i + 1].end);
+      items.push(species);
+      i += 2;
+    }
+    if (words[i]?.text !== '=') {
+      bad(words[i]);
+      return { children: items, build };
+    }
+    items.push(token(text, 'equals', words[i].start, words[i].end));
+    i++;
+    const byIndex = words.findIndex((w, k) => k >= i && w.text === 'by');
+    if (byIndex < 0 || byIndex === i || !words[byIndex + 1]) {
+      bad(words[i]);
+      return { children: items, build };
+    }
+    value = this.quantity(words[i].start, words[byIndex - 1].end, 'the target value', words[i]);
+    if (value) items.push(value);
+    items.push(token(text, 'keyword', words[byIndex].start, words[byIndex].end));
+    variable = token(text, 'name', words[byIndex + 1].start, words[byIndex + 1].end);
+    items.push(variable);
+    i = byIndex + 2;
+    if (i < words.length) {
+      const isNumber = (w: Word | undefined): boolean => w !== undefined && NUMBER_PREFIX.exec(w.text)?.[0].length === w.text.length;
+      if (words[i].text === 'from' && isNumber(words[i + 1]) && words[i + 2]?.text === 'to' && isNumber(words[i + 3])) {
+        items.push(token(text, 'keyword', words[i].start, words[i].end));
+        from = token(text, 'number', words[i + 1].start, words[i + 1].end);
+        items.push(from, token(text, 'keyword', words[i + 2].start, words[i + 2].end));
+        to = token(text, 'number', words[i + 3].start, words[i + 3].end);
+        items.push(to);
+        if (words[i + 4]) {
+          unit = token(text, 'unit', words[i + 4].start, words[words.length - 1].end);
+          items.push(unit);
+        }
+      } else {
+        bad(words[i]);
+      }
+    }
+    return { children: items, build };
   }
 
   private amountLine(cs: number, ce: number, words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {

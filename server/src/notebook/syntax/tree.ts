@@ -92,7 +92,24 @@ export interface SweepNode extends NodeBase {
   readonly unit?: Token;
 }
 
-export type PropertyLine = PropertyNode | AmountNode | SweepNode | ErrorLineNode;
+/**
+ * `target conversion of SPECIES = X % by VARIABLE [from A to B UNIT]` (also `yield of PRODUCT`,
+ * and `pressure = X bar`): the value of VARIABLE at which the batch meets a goal.
+ */
+export interface TargetNode extends NodeBase {
+  readonly type: 'target';
+  readonly keyword: Token;
+  /** `conversion`, `yield` or `pressure`. */
+  readonly goal?: Token;
+  readonly species?: Token;
+  readonly value?: QuantityNode;
+  readonly variable?: Token;
+  readonly from?: Token;
+  readonly to?: Token;
+  readonly unit?: Token;
+}
+
+export type PropertyLine = PropertyNode | AmountNode | SweepNode | TargetNode | ErrorLineNode;
 
 /** `species NAME = FORMULA [(PHASE)]` with its property lines. */
 export interface SpeciesNode extends NodeBase {
@@ -139,7 +156,7 @@ export interface FileNode extends NodeBase {
   readonly statements: readonly StatementNode[];
 }
 
-export type Node = FileNode | StatementNode | PropertyNode | AmountNode | SweepNode | TermNode | QuantityNode;
+export type Node = FileNode | StatementNode | PropertyNode | AmountNode | SweepNode | TargetNode | TermNode | QuantityNode;
 
 export interface SyntaxError {
   readonly code: 'syntax' | 'line-too-long';
