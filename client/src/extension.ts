@@ -117,6 +117,13 @@ export async function activate(context: ExtensionContext): Promise<void> {
       await env.clipboard.writeText(md);
       void window.showInformationMessage(`Copied the results of batch ${name} as a Markdown table.`);
     }),
+    commands.registerCommand('stillpoint.showReport', async () => {
+      const uri = activeUri();
+      if (!uri || !client) return;
+      const md = await client.sendRequest<string | null>('workspace/executeCommand', { command: 'stillpoint.server.report', arguments: [uri] });
+      if (!md) return;
+      await window.showTextDocument(await workspace.openTextDocument({ language: 'markdown', content: md }));
+    }),
     commands.registerCommand('stillpoint.restartServer', async () => {
       await client?.restart();
     }),

@@ -8,6 +8,7 @@ import { trim } from '../chem/units';
 import { rewriteEquation } from '../notebook/semantic/balance-check';
 import { createNotebookService, type Analysis, type Diagnostic } from '../notebook/ide/service';
 import { solve } from './solve';
+import { report } from './report';
 
 const USAGE = `usage: stillpoint COMMAND [ARGS] [--json]
 
@@ -17,6 +18,8 @@ commands:
   formula "FORMULA" [--json]    composition, charge and molar mass of a formula
   solve FILE [--batch NAME] [--json]
                                 equilibrium composition of each batch (or one)
+  report FILE [--format md|html] [--out FILE]
+                                the whole notebook as a document for a lab record
   help                          show this text
 
 exit status: 0 success, 1 an error diagnostic or failure, 2 bad usage`;
@@ -28,27 +31,38 @@ export interface CliIo {
 
 export class UsageError extends Error {}
 
-function parseOptions(argv: readonly string[]): { args: string[]; json: boolean; batch?: string } {
-  const args: string[] = [];
-  let json = false;
-  let batch: string | undefined;
+interface Options {
+  args: string[];
+  json: boolean;
+  batch?: string;
+  format?: string;
+  out?: string;
+}
+
+function parseOptions(argv: readonly string[]): Options {
+  const o: Options = { args: [], json: false };
+  const value = (i: number, name: string): string => {
+    if (i + 1 >= argv.length || argv[i + 1].startsWith('--')) throw new UsageError(`${name} needs a value`);
+    return argv[i + 1];
+  };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
-    if (a === '--json') json = true;
-    else if (a === '--batch') {
-      if (i + 1 >= argv.length || argv[i + 1].startsWith('--')) throw new UsageError('--batch needs a batch name');
-      batch = argv[++i];
-    } else if (a.startsWith('--')) throw new UsageError(`unknown option ${a}`);
-    else args.push(a);
+    if (a === '--json') o.json = true;
+    else if (a === '--batch') o.batch = value(i++, '--batch');
+    else if (a === '--format') o.format = value(i++, '--format');
+    else if (a === '--out') o.out = value(i++, '--out');
+    else if (a.startsWith('--')) throw new UsageError(`unknown option ${a}`);
+    else o.args.push(a);
   }
-  return { args, json, batch };
+  return o;
 }
 
 export function runCli(argv: readonly string[], io: CliIo): number {
   try {
-    const { args, json, batch } = parseOptions(argv);
+    const { args, json, batch, format, out } = parseOptions(argv);
     const [command, ...rest] = args;
     if (batch !== undefined && command !== 'solve') throw new UsageError('--batch belongs to `solve`');
+    if ((format !== undefined || out !== undefined) && command !== 'report') throw new UsageError('--format and --out belong to `report`');
     switch (command) {
       case 'check':
         if (rest.length === 0) throw new UsageError('check needs at least one file or folder');
@@ -62,6 +76,10 @@ export function runCli(argv: readonly string[], io: CliIo): number {
       case 'solve':
         if (rest.length !== 1) throw new UsageError('solve takes one notebook file');
         return solve(rest[0], batch, json, io);
+      case 'report':
+        if (rest.length !== 1) throw new UsageError('report takes one notebook file');
+        if (format !== undefined && format !== 'md' && format !== 'html') throw new UsageError('--format is md or html');
+        return report(rest[0], format === 'html' ? 'html' : 'md', out, io);
       case 'help':
       case '-h':
         io.out(USAGE);

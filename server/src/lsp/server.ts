@@ -29,6 +29,7 @@ export const SERVER_COMMANDS = {
   balanceAll: 'stillpoint.server.balanceAll',
   batchMarkdown: 'stillpoint.server.batchMarkdown',
   batchNames: 'stillpoint.server.batchNames',
+  report: 'stillpoint.server.report',
 } as const;
 
 /** The notification that carries a notebook's summary to the client's status bar. */
@@ -242,6 +243,8 @@ export function startServer(connection: Connection): void {
         return typeof name === 'string' ? (runSafe(connection, 'batch table', undefined, () => service.batchMarkdown(analysis, name)) ?? null) : null;
       case SERVER_COMMANDS.batchNames:
         return analysis.model.batches.map((b) => b.name);
+      case SERVER_COMMANDS.report:
+        return runSafe(connection, 'report', null, () => service.reportMarkdown(analysis, `Equilibrium notebook: ${decodeURIComponent(uri.split('/').pop() ?? uri)}`));
       case SERVER_COMMANDS.balanceAll: {
         const edits = runSafe(connection, 'balance all', [], () => service.balanceAllEdits(analysis));
         if (edits.length === 0) return 0;

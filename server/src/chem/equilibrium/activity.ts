@@ -2,7 +2,7 @@
 // definition (used by tests and hovers); the log forms below work on a
 // prepared problem and keep full relative precision for trace amounts.
 import { PURE, type Prepared } from './problem';
-import { GAS_CONSTANT, STANDARD_CONCENTRATION, STANDARD_PRESSURE, type EquilibriumProblem } from './types';
+import { GAS_CONSTANT, STANDARD_CONCENTRATION, STANDARD_PRESSURE, type EquilibriumProblem, type SolverPhase } from './types';
 
 /**
  * Activities for amounts `n` (mol, one per species), by the standard states of
@@ -13,27 +13,32 @@ import { GAS_CONSTANT, STANDARD_CONCENTRATION, STANDARD_PRESSURE, type Equilibri
  * volume, or invalid conditions) is NaN — `solveEquilibrium` never produces one.
  */
 export function activities(problem: EquilibriumProblem, n: readonly number[]): number[] {
-  const { species, conditions } = problem;
+  const { species } = problem;
   let gas = 0;
   let liquid = 0;
   for (let i = 0; i < species.length; i++) {
     if (species[i].phase === 'g') gas += n[i];
     else if (species[i].phase === 'l') liquid += n[i];
   }
-  return species.map((sp, i) => {
-    const amount = n[i];
-    switch (sp.phase) {
-      case 'g':
-        if (conditions.kind === 'constant-pressure') return gas > 0 ? (amount / gas) * (conditions.P / STANDARD_PRESSURE) : 0;
-        return (amount * GAS_CONSTANT * conditions.T) / (conditions.gasVolume * STANDARD_PRESSURE);
-      case 'l':
-        return liquid > 0 ? amount / liquid : 0;
-      case 'aq':
-        return problem.liquidVolume !== undefined && problem.liquidVolume > 0 ? amount / (problem.liquidVolume * STANDARD_CONCENTRATION) : Number.NaN;
-      default:
-        return amount > 0 ? 1 : 0;
-    }
-  });
+  const out: number[] = [];
+  for (let i = 0; i < species.length; i++) out.push(activity(problem, species[i].phase, n[i], gas, liquid));
+  return out;
+}
+
+/** The activity of one species with amount `amount` (mol), given the gas and liquid totals. */
+function activity(problem: EquilibriumProblem, phase: SolverPhase, amount: number, gas: number, liquid: number): number {
+  const { conditions } = problem;
+  switch (phase) {
+    case 'g':
+      if (conditions.kind === 'constant-pressure') return gas > 0 ? (amount / gas) * (conditions.P / STANDARD_PRESSURE) : 0;
+      return (amount * GAS_CONSTANT * conditions.T) / (conditions.gasVolume * STANDARD_PRESSURE);
+    case 'l':
+      return liquid > 0 ? amount / liquid : 0;
+    case 'aq':
+      return problem.liquidVolume !== undefined && problem.liquidVolume > 0 ? amount / (problem.liquidVolume * STANDARD_CONCENTRATION) : Number.NaN;
+    default:
+      return amount > 0 ? 1 : 0;
+  }
 }
 
 /**

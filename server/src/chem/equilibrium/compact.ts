@@ -1,7 +1,26 @@
 // The variable part of a prepared problem in compact form (only the species
 // touched by the independent active reactions), shared by the extent-space
 // Newton solver and the log-amount polish, with helpers for ln a.
+import type { RowEchelon } from './linalg';
 import { PURE, type Prepared } from './problem';
+
+/** Pivot species of ν and the LU factors of ν on them, for turning amount changes into extent changes (polish.ts). */
+export interface ExtentSystem {
+  readonly pivots: Int32Array;
+  readonly lu: Float64Array;
+  readonly perm: Int32Array;
+}
+
+/**
+ * What depends only on the basis stoichiometry ν (rho × m), filled in when first needed
+ * (polish.ts): its reduced row echelon form, its conservation laws (a null-space basis), and
+ * the extent system (null when ν is rank deficient). Never modified once computed.
+ */
+export interface Stoichiometry {
+  echelon?: RowEchelon;
+  laws?: { readonly count: number; readonly basis: Float64Array };
+  extentSystem?: ExtentSystem | null;
+}
 
 export interface Compact {
   readonly m: number;
@@ -29,6 +48,29 @@ export interface Compact {
   readonly n0: Float64Array;
   /** Scale for relative tests: Σ n0 over all species (at least the smallest positive double). */
   readonly total: number;
+  /** Derived from ν alone, computed once (shared by solves with the same ν, see `stoichiometryOf`). */
+  readonly stoichiometry: Stoichiometry;
+}
+
+/** The ν (rho × m) of the last general solve and what was derived from it. */
+let lastStoichiometry: { readonly rho: number; readonly m: number; readonly nu: Float64Array; readonly derived: Stoichiometry } | undefined;
+
+/**
+ * The derived data for ν: those of the previous general solve when its ν has the same shape
+ * and the same entries (the usual case when a notebook re-solves a batch, or solves several
+ * batches of one reaction set), else a fresh, empty record. Exact: everything in it is a
+ * deterministic function of ν.
+ */
+function stoichiometryOf(nu: Float64Array, rho: number, m: number): Stoichiometry {
+  const last = lastStoichiometry;
+  if (last && last.rho === rho && last.m === m) {
+    let same = true;
+    for (let q = 0; q < rho * m && same; q++) same = Object.is(last.nu[q], nu[q]);
+    if (same) return last.derived;
+  }
+  const derived: Stoichiometry = {};
+  lastStoichiometry = { rho, m, nu: nu.slice(), derived };
+  return derived;
 }
 
 /**
@@ -40,21 +82,50 @@ export interface Compact {
  */
 export const PHANTOM_FRACTION = 1e-30;
 
+/**
+ * The arrays of the last compact problem, reused by the next one of the same shape: a
+ * compact problem lives for one solve (nothing in a result refers to it) and solves are
+ * not re-entrant, so `compact` can rewrite them. The mixture index, whose length depends
+ * on the phases, is replaced when that length changes.
+ */
+class CompactArrays {
+  readonly nu: Float64Array;
+  readonly lnK: Float64Array;
+  readonly mixture: Uint8Array;
+  readonly group: Int8Array;
+  readonly offset: Float64Array;
+  readonly n0: Float64Array;
+  readonly groupInert = new Float64Array(2);
+  readonly phantom = new Float64Array(2);
+  mixtureIndex = new Int32Array(0);
+  constructor(
+    readonly m: number,
+    readonly rho: number,
+  ) {
+    this.nu = new Float64Array(rho * m);
+    this.lnK = new Float64Array(rho);
+    this.mixture = new Uint8Array(m);
+    this.group = new Int8Array(m);
+    this.offset = new Float64Array(m);
+    this.n0 = new Float64Array(m);
+  }
+}
+
+let pooledArrays: CompactArrays | undefined;
+
+/** The compact form of a prepared problem; valid until the next call (its arrays are reused). */
 export function compact(p: Prepared): Compact {
   const S = p.speciesCount;
   const m = p.variable.length;
   const rho = p.basis.length;
-  const nu = new Float64Array(rho * m);
-  const lnK = new Float64Array(rho);
+  if (!pooledArrays || pooledArrays.m !== m || pooledArrays.rho !== rho) pooledArrays = new CompactArrays(m, rho);
+  const arrays = pooledArrays;
+  const { nu, lnK, mixture, group, offset, n0, groupInert, phantom } = arrays;
   for (let k = 0; k < rho; k++) {
     const r = p.basis[k];
     lnK[k] = p.lnK[r];
     for (let j = 0; j < m; j++) nu[k * m + j] = p.nu[r * S + p.variable[j]];
   }
-  const mixture = new Uint8Array(m);
-  const group = new Int8Array(m);
-  const offset = new Float64Array(m);
-  const n0 = new Float64Array(m);
   for (let j = 0; j < m; j++) {
     const i = p.variable[j];
     mixture[j] = p.model[i] === PURE ? 0 : 1;
@@ -65,11 +136,12 @@ export function compact(p: Prepared): Compact {
   const total = Math.max(p.totalAmount, Number.MIN_VALUE);
   let mixtureCount = 0;
   for (let j = 0; j < m; j++) mixtureCount += mixture[j];
-  const mixtureIndex = new Int32Array(mixtureCount);
+  if (arrays.mixtureIndex.length !== mixtureCount) arrays.mixtureIndex = new Int32Array(mixtureCount);
+  const mixtureIndex = arrays.mixtureIndex;
   for (let j = 0, q = 0; j < m; j++) if (mixture[j]) mixtureIndex[q++] = j;
-  const groupInert = Float64Array.from(p.groupInert);
-  const phantom = new Float64Array(2);
   for (let g = 0; g < 2; g++) {
+    groupInert[g] = p.groupInert[g];
+    phantom[g] = 0;
     let members = 0;
     let others = 0;
     for (let j = 0; j < m; j++) {
@@ -95,6 +167,7 @@ export function compact(p: Prepared): Compact {
     phantom,
     n0,
     total,
+    stoichiometry: stoichiometryOf(nu, rho, m),
   };
 }
 

@@ -120,7 +120,7 @@ export interface StageOutcome {
 /** The starting point: n0, then each reaction that first makes a species formable is run a fraction of the way (closure order). */
 export function initialState(c: Compact, p: Prepared): ExtentState {
   const S = p.speciesCount;
-  const n = Float64Array.from(c.n0);
+  const n = c.n0.slice();
   const xi = new Float64Array(c.rho);
   const position = new Int32Array(S).fill(-1);
   for (let j = 0; j < c.m; j++) position[c.species[j]] = j;
@@ -445,9 +445,9 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     const kappa = ws.kappa;
     const zb = ws.z;
     if (basisFor !== dirs) {
-      s.set(dirs.s.subarray(0, k * m));
-      kappa.set(dirs.kappa.subarray(0, k));
-      zb.set(dirs.z.subarray(0, k * rho));
+      for (let q = 0; q < k * m; q++) s[q] = dirs.s[q];
+      for (let a = 0; a < k; a++) kappa[a] = dirs.kappa[a];
+      for (let q = 0; q < k * rho; q++) zb[q] = dirs.z[q];
       basisFor = dirs;
       adaptBasis(c, n, s, kappa, zb, k, ws.used);
     } else if (needsAdapting(c, n, s, k)) adaptBasis(c, n, s, kappa, zb, k, ws.used);
@@ -509,7 +509,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
     if (!Number.isFinite(decrement)) return { ok: false, message: 'the Newton step is not finite', directions: dirs };
 
     const d = ws.d;
-    d.fill(0);
+    for (let j = 0; j < m; j++) d[j] = 0;
     for (let a = 0; a < k; a++) {
       const pa = ws.pz[a];
       if (pa !== 0) for (let j = 0; j < m; j++) d[j] += pa * s[a * m + j];
@@ -538,7 +538,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       continue;
     }
 
-    ws.dxi.fill(0);
+    for (let r = 0; r < rho; r++) ws.dxi[r] = 0;
     for (let a = 0; a < k; a++) {
       const pa = ws.pz[a];
       if (pa !== 0) for (let r = 0; r < rho; r++) ws.dxi[r] += pa * zb[a * rho + r];

@@ -70,8 +70,8 @@ export function holdDwindledPhasesAbsent(c: Compact, st: ExtentState): boolean {
   if (!gone[0] && !gone[1]) return false;
   const isMember = (j: number): boolean => c.group[j] >= 0 && gone[c.group[j]];
   const isAbsent = (j: number): boolean => c.group[j] >= 0 && (gone[c.group[j]] || st.absent[c.group[j]] === 1);
-  const n = Float64Array.from(st.n);
-  const xi = Float64Array.from(st.xi);
+  const n = st.n.slice();
+  const xi = st.xi.slice();
   removeAlongReactions(c, st.held, n, xi, isMember);
   for (let j = 0; j < m; j++) if (isMember(j) || (!c.mixture[j] && n[j] <= VANISH_FRACTION * c.total)) n[j] = 0;
   const held = new Uint8Array(m);
@@ -400,7 +400,7 @@ export function formAbsentPhase(c: Compact, st: ExtentState, g: number, test: Ph
 
 /** Gauss–Jordan on the first `columns` columns of a (rows × width) matrix, carrying the rest along. */
 function reducedRowEchelonOnColumns(a: Float64Array, rows: number, width: number, columns: number): { rank: number; pivotColumns: Int32Array; reduced: Float64Array } {
-  const m = Float64Array.from(a);
+  const m = a.slice();
   let scale = 0;
   for (let i = 0; i < rows; i++) for (let j = 0; j < columns; j++) scale = Math.max(scale, Math.abs(m[i * width + j]));
   const tol = RANK_TOLERANCE * scale;

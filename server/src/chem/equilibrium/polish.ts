@@ -55,7 +55,8 @@ const MAX_HALVINGS = 30;
 export function polish(c: Compact, st: ExtentState, start: Directions): StageOutcome & { iterations: number } {
   let dirs = start;
   let iterations = 0;
-  const heldBefore = Uint8Array.from(st.held);
+  const heldBefore = workspaceFor(c).heldBefore;
+  heldBefore.set(st.held);
   for (let round = 0; round <= c.m; round++) {
     const outcome = polishOnce(c, st, dirs);
     iterations += outcome.iterations;
@@ -80,44 +81,104 @@ interface PolishOnce {
   readonly negative: number;
 }
 
+/** The last polish workspace, reused by the next solve of the same size (solves are not re-entrant). */
+let pooled: PolishWorkspace | undefined;
+
+function workspaceFor(c: Compact): PolishWorkspace {
+  if (!pooled || pooled.m !== c.m || pooled.rho !== c.rho) pooled = new PolishWorkspace(c.m, c.rho);
+  return pooled;
+}
+
+/**
+ * Scratch arrays of the polish, sized for the largest case (every variable species free:
+ * q <= m unknowns and equations, at most m conservation laws, at most rho directions); a
+ * polish uses the leading part of each. Nothing in them outlives one polishOnce, except
+ * `heldBefore`, which belongs to `polish` around it.
+ */
+class PolishWorkspace {
+  readonly heldBefore: Uint8Array;
+  /** Compact index of each unknown. */
+  readonly unknown: Int32Array;
+  /** The conservation laws as rewritten by conservationRows (laws × m). */
+  readonly laws: Float64Array;
+  readonly lawPivotUsed: Uint8Array;
+  readonly rowScale: Float64Array;
+  readonly x: Float64Array;
+  readonly amounts: Float64Array;
+  readonly totals = new Float64Array(2);
+  readonly logA: Float64Array;
+  readonly residual: Float64Array;
+  /** q × q, row-major, in the leading q² entries. */
+  readonly jac: Float64Array;
+  readonly perm: Int32Array;
+  readonly step: Float64Array;
+  readonly trialX: Float64Array;
+  readonly groupSums: Float64Array;
+  constructor(
+    readonly m: number,
+    readonly rho: number,
+  ) {
+    this.heldBefore = new Uint8Array(m);
+    this.unknown = new Int32Array(m);
+    this.laws = new Float64Array(m * m);
+    this.lawPivotUsed = new Uint8Array(m);
+    this.rowScale = new Float64Array(m);
+    this.x = new Float64Array(m);
+    this.amounts = new Float64Array(m);
+    this.logA = new Float64Array(m);
+    this.residual = new Float64Array(m);
+    this.jac = new Float64Array(m * m);
+    this.perm = new Int32Array(m);
+    this.step = new Float64Array(m);
+    this.trialX = new Float64Array(m);
+    this.groupSums = new Float64Array(2 * rho);
+  }
+}
+
+function polishFailure(message: string, iterations: number): PolishOnce {
+  return { ok: false, message, iterations, negative: -1 };
+}
+
 function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   const { m } = c;
   const n = st.n;
   const held = st.held;
-  const unknown: number[] = [];
-  for (let j = 0; j < m; j++) if (held[j] === FREE) unknown.push(j);
-  const q = unknown.length;
+  const ws = workspaceFor(c);
+  const unknown = ws.unknown;
+  let q = 0;
+  for (let j = 0; j < m; j++) if (held[j] === FREE) unknown[q++] = j;
   const k = dirs.k;
-  const fail = (message: string, iterations: number): PolishOnce => ({ ok: false, message, iterations, negative: -1 });
+  const fail = polishFailure;
 
-  const laws = conservationRows(c, held, n);
-  const count = laws.count;
+  const count = conservationRows(c, held, n, ws);
   if (count + k !== q) return fail('the conservation laws and the reduced reactions do not determine the present species', 0);
-  const invariants = laws.rows;
-  const rowScale = new Float64Array(count);
+  const invariants = ws.laws;
+  const rowScale = ws.rowScale;
   for (let l = 0; l < count; l++) {
     let sc = 0;
     for (let j = 0; j < m; j++) sc += Math.abs(invariants[l * m + j]) * Math.max(n[j], c.n0[j]);
     rowScale[l] = Math.max(sc, ROW_SCALE_FLOOR * c.total);
   }
-  const x = new Float64Array(q);
+  const x = ws.x;
   for (let u = 0; u < q; u++) {
     const j = unknown[u];
     x[u] = c.mixture[j] ? Math.log(n[j]) : n[j];
     if (c.mixture[j] && !Number.isFinite(x[u])) return fail('a mixture species has no positive amount to start the polish from', 0);
   }
-  const amounts = Float64Array.from(n);
-  for (let j = 0; j < m; j++) if (held[j] !== FREE) amounts[j] = 0;
-  const totals = new Float64Array(2);
-  const logA = new Float64Array(m);
-  for (let j = 0; j < m; j++) if (!c.mixture[j]) logA[j] = c.offset[j];
-  const residual = new Float64Array(q);
-  const jac = new Float64Array(q * q);
-  const perm = new Int32Array(q);
-  const step = new Float64Array(q);
-  const trialX = new Float64Array(q);
-  const groupSums = new Float64Array(2 * k);
+  const amounts = ws.amounts;
+  for (let j = 0; j < m; j++) amounts[j] = held[j] !== FREE ? 0 : n[j];
+  const totals = ws.totals;
+  const logA = ws.logA;
+  for (let j = 0; j < m; j++) logA[j] = c.mixture[j] ? 0 : c.offset[j];
+  const residual = ws.residual;
+  const jac = ws.jac;
+  const perm = ws.perm;
+  const step = ws.step;
+  const trialX = ws.trialX;
+  const groupSums = ws.groupSums;
   for (let a = 0; a < k; a++) {
+    groupSums[2 * a] = 0;
+    groupSums[2 * a + 1] = 0;
     for (let j = 0; j < m; j++) {
       const g = c.group[j];
       if (g >= 0) groupSums[2 * a + g] += dirs.s[a * m + j];
@@ -240,29 +301,19 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   return { ok: true, iterations, negative: -1 };
 }
 
-/** Conservation laws of the basis reactions over the variable species (a null-space basis of ν), cached per compact problem. */
+/** Conservation laws of the basis reactions over the variable species (a null-space basis of ν), computed once per ν. */
 export function conservationLaws(c: Compact): { readonly count: number; readonly basis: Float64Array } {
-  let laws = lawCache.get(c);
-  if (!laws) {
-    laws = nullSpaceBasis(stoichiometricEchelon(c), c.m);
-    lawCache.set(c, laws);
-  }
-  return laws;
+  const derived = c.stoichiometry;
+  if (!derived.laws) derived.laws = nullSpaceBasis(stoichiometricEchelon(c), c.m);
+  return derived.laws;
 }
 
-const lawCache = new WeakMap<Compact, { readonly count: number; readonly basis: Float64Array }>();
-
-/** Reduced row echelon form of the basis stoichiometry ν (rho × m), computed once per compact problem. */
+/** Reduced row echelon form of the basis stoichiometry ν (rho × m), computed once per ν. */
 function stoichiometricEchelon(c: Compact): RowEchelon {
-  let e = echelonCache.get(c);
-  if (!e) {
-    e = reducedRowEchelon(c.nu, c.rho, c.m, RANK_TOLERANCE);
-    echelonCache.set(c, e);
-  }
-  return e;
+  const derived = c.stoichiometry;
+  if (!derived.echelon) derived.echelon = reducedRowEchelon(c.nu, c.rho, c.m, RANK_TOLERANCE);
+  return derived.echelon;
 }
-
-const echelonCache = new WeakMap<Compact, RowEchelon>();
 
 /**
  * The conservation laws for the polish, rewritten by Gauss–Jordan elimination whose pivots
@@ -272,14 +323,17 @@ const echelonCache = new WeakMap<Compact, RowEchelon>();
  * by conservation is not disturbed by the rounding of the major ones. Entries below
  * LAW_CLEANUP of their row's largest are rounding residue and set to zero. Laws that vanish
  * on the free species (implied by held zeros) are dropped. Rows span all variable species
- * (held ones included, for the right-hand sides c·n0).
+ * (held ones included, for the right-hand sides c·n0). The rows are left in `ws.laws`; returns
+ * how many there are.
  */
-function conservationRows(c: Compact, held: Uint8Array, n: Float64Array): { count: number; rows: Float64Array } {
+function conservationRows(c: Compact, held: Uint8Array, n: Float64Array, ws: PolishWorkspace): number {
   const { m } = c;
   const all = conservationLaws(c);
-  const rows = Float64Array.from(all.basis);
+  const rows = ws.laws;
   const total = all.count;
-  const used = new Uint8Array(m);
+  for (let q = 0; q < total * m; q++) rows[q] = all.basis[q];
+  const used = ws.lawPivotUsed;
+  for (let j = 0; j < m; j++) used[j] = 0;
   let rank = 0;
   for (; rank < total; rank++) {
     let largest = 0;
@@ -329,13 +383,13 @@ function conservationRows(c: Compact, held: Uint8Array, n: Float64Array): { coun
     for (let j = 0; j < m; j++) big = Math.max(big, Math.abs(rows[l * m + j]));
     for (let j = 0; j < m; j++) if (Math.abs(rows[l * m + j]) < LAW_CLEANUP * big) rows[l * m + j] = 0;
   }
-  return { count: rank, rows: rows.subarray(0, rank * m) };
+  return rank;
 }
 
 /** ξ += Δξ with ν·Δξ = Δn on a set of pivot species (complete-pivoting echelon of ν) where ν is best conditioned. */
 function updateExtents(c: Compact, st: ExtentState, amounts: Float64Array): void {
   const { m, rho } = c;
-  let cached = extentSystems.get(c);
+  let cached = c.stoichiometry.extentSystem;
   if (cached === undefined) {
     const e = stoichiometricEchelon(c);
     if (e.rank !== rho) cached = null;
@@ -345,7 +399,7 @@ function updateExtents(c: Compact, st: ExtentState, amounts: Float64Array): void
       const perm = new Int32Array(rho);
       cached = luFactor(a, rho, perm) ? { pivots: e.pivotColumns, lu: a, perm } : null;
     }
-    extentSystems.set(c, cached);
+    c.stoichiometry.extentSystem = cached;
   }
   if (cached === null) return;
   const b = new Float64Array(rho);
@@ -356,6 +410,3 @@ function updateExtents(c: Compact, st: ExtentState, amounts: Float64Array): void
   luSolve(cached.lu, rho, cached.perm, b);
   for (let r = 0; r < rho; r++) st.xi[r] += b[r];
 }
-
-/** Per compact problem: the pivot species and LU factors of ν on them (null if ν is rank deficient). */
-const extentSystems = new WeakMap<Compact, { readonly pivots: Int32Array; readonly lu: Float64Array; readonly perm: Int32Array } | null>();

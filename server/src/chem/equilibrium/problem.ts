@@ -31,7 +31,10 @@ export const DEPENDENT_LNK_TOLERANCE = 1e-6;
 /** Relative rounding allowance on the combination of ln K values. */
 const LNK_ROUNDING = 1e-12;
 
-const PHASES: readonly SolverPhase[] = ['g', 'l', 'aq', 's', 'solvent'];
+/** Whether `phase` is one of the solver's phases (see {@link SolverPhase}). */
+function isPhase(phase: unknown): phase is SolverPhase {
+  return phase === 'g' || phase === 'l' || phase === 'aq' || phase === 's' || phase === 'solvent';
+}
 
 export interface Prepared {
   readonly problem: EquilibriumProblem;
@@ -60,6 +63,8 @@ export interface Prepared {
   readonly kicks: readonly number[];
   /** Species touched by the active reactions, ascending. */
   readonly variable: Int32Array;
+  /** 1 for each species in `variable`. */
+  readonly touched: Uint8Array;
   /** Σ n0 over all species. */
   readonly totalAmount: number;
 }
@@ -72,6 +77,68 @@ function fail(message: string): PrepareOutcome {
   return { ok: false, message };
 }
 
+/** A species for a message: its quoted id, or its 1-based position when it has none. */
+function speciesName(species: EquilibriumProblem['species'], i: number): string {
+  return species[i] && typeof species[i].id === 'string' ? `"${species[i].id}"` : `#${i + 1}`;
+}
+
+/** A reaction for a message: its quoted label, or its 1-based position when it has none. */
+function reactionName(reactions: EquilibriumProblem['reactions'], r: number): string {
+  return reactions[r] && typeof reactions[r].label === 'string' ? `"${reactions[r].label}"` : `#${r + 1}`;
+}
+
+/**
+ * The typed arrays of a prepared problem with S species and R reactions, kept from one
+ * solve to the next: solving a problem of the same size again (a notebook re-solves its
+ * batches on every edit; a benchmark repeats one problem) then allocates none of them.
+ * This is safe because a prepared problem never outlives its solve (the result is built
+ * from copies) and solves are not re-entrant; `prepare` rewrites every entry it reads.
+ * The arrays whose length depends on the problem's structure (basis, variable species)
+ * are kept too and replaced when that length changes.
+ */
+class PreparedArrays {
+  readonly n0: Float64Array;
+  readonly nu: Float64Array;
+  readonly lnK: Float64Array;
+  readonly model: Int8Array;
+  readonly group: Int8Array;
+  readonly offset: Float64Array;
+  readonly groupInert = new Float64Array(2);
+  readonly active: Uint8Array;
+  readonly formable: Uint8Array;
+  readonly runForward: Uint8Array;
+  readonly runBackward: Uint8Array;
+  readonly touched: Uint8Array;
+  basis = new Int32Array(0);
+  basisCoefficients = new Float64Array(0);
+  variable = new Int32Array(0);
+  constructor(
+    readonly speciesCount: number,
+    readonly reactionCount: number,
+  ) {
+    const S = speciesCount;
+    const R = reactionCount;
+    this.n0 = new Float64Array(S);
+    this.nu = new Float64Array(R * S);
+    this.lnK = new Float64Array(R);
+    this.model = new Int8Array(S);
+    this.group = new Int8Array(S);
+    this.offset = new Float64Array(S);
+    this.active = new Uint8Array(R);
+    this.formable = new Uint8Array(S);
+    this.runForward = new Uint8Array(R);
+    this.runBackward = new Uint8Array(R);
+    this.touched = new Uint8Array(S);
+  }
+}
+
+let pooledArrays: PreparedArrays | undefined;
+
+function preparedArrays(S: number, R: number): PreparedArrays {
+  if (!pooledArrays || pooledArrays.speciesCount !== S || pooledArrays.reactionCount !== R) pooledArrays = new PreparedArrays(S, R);
+  return pooledArrays;
+}
+
 /**
  * Checks the problem and builds everything the solvers need; never throws on bad input.
  * Besides the checks of the brief, a reaction with only products or only reactants is
@@ -82,6 +149,8 @@ function fail(message: string): PrepareOutcome {
  * Formability: from the species present, a reaction can run forward once all its reactants
  * can exist and backward once all its products can (a fixed point); reactions that can do
  * neither are inactive, species never reached stay exactly zero.
+ * The returned arrays are reused by the next call (see PreparedArrays): a prepared problem
+ * is valid until the next `prepare`.
  */
 export function prepare(problem: EquilibriumProblem): PrepareOutcome {
   if (problem === null || typeof problem !== 'object') return fail('the problem is not an object');
@@ -91,18 +160,18 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
   if (conditions === null || typeof conditions !== 'object') return fail('the conditions are missing');
   const S = species.length;
   const R = reactions.length;
+  const arrays = preparedArrays(S, R);
 
-  const n0 = new Float64Array(S);
+  const n0 = arrays.n0;
   let hasAqueous = false;
-  const speciesName = (i: number): string => (species[i] && typeof species[i].id === 'string' ? `"${species[i].id}"` : `#${i + 1}`);
   for (let i = 0; i < S; i++) {
     const sp = species[i];
-    if (!sp || !PHASES.includes(sp.phase)) return fail(`species ${speciesName(i)} has an unknown phase (expected g, l, aq, s or solvent)`);
+    if (!sp || !isPhase(sp.phase)) return fail(`species ${speciesName(species, i)} has an unknown phase (expected g, l, aq, s or solvent)`);
     const amount = sp.n0;
     if (!(amount >= 0) || amount === Infinity) {
-      if (typeof amount !== 'number' || Number.isNaN(amount)) return fail(`species ${speciesName(i)} has an initial amount that is not a number`);
-      if (amount === Infinity) return fail(`species ${speciesName(i)} has an infinite initial amount`);
-      return fail(`species ${speciesName(i)} has a negative initial amount (${amount} mol)`);
+      if (typeof amount !== 'number' || Number.isNaN(amount)) return fail(`species ${speciesName(species, i)} has an initial amount that is not a number`);
+      if (amount === Infinity) return fail(`species ${speciesName(species, i)} has an infinite initial amount`);
+      return fail(`species ${speciesName(species, i)} has a negative initial amount (${amount} mol)`);
     }
     n0[i] = amount;
     if (sp.phase === 'aq') hasAqueous = true;
@@ -129,56 +198,48 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
     return fail(`species "${first?.id ?? ''}" is aqueous (aq) but no liquid volume was given`);
   }
 
-  const nu = new Float64Array(R * S);
-  const lnK = new Float64Array(R);
-  const reactionName = (r: number): string => (reactions[r] && typeof reactions[r].label === 'string' ? `"${reactions[r].label}"` : `#${r + 1}`);
+  const nu = arrays.nu;
+  const lnK = arrays.lnK;
   for (let r = 0; r < R; r++) {
     const re = reactions[r];
-    if (!re || !Array.isArray(re.nu)) return fail(`reaction ${reactionName(r)} has no stoichiometric coefficients`);
-    if (re.nu.length !== S) return fail(`reaction ${reactionName(r)} has ${re.nu.length} stoichiometric coefficients for ${S} species`);
+    if (!re || !Array.isArray(re.nu)) return fail(`reaction ${reactionName(reactions, r)} has no stoichiometric coefficients`);
+    if (re.nu.length !== S) return fail(`reaction ${reactionName(reactions, r)} has ${re.nu.length} stoichiometric coefficients for ${S} species`);
     let hasReactant = false;
     let hasProduct = false;
     for (let i = 0; i < S; i++) {
       const v = re.nu[i];
-      if (!isFiniteNumber(v)) return fail(`reaction ${reactionName(r)} has a coefficient for species "${species[i].id}" that is not a finite number`);
+      if (!isFiniteNumber(v)) return fail(`reaction ${reactionName(reactions, r)} has a coefficient for species "${species[i].id}" that is not a finite number`);
       nu[r * S + i] = v;
       if (v < 0) hasReactant = true;
       if (v > 0) hasProduct = true;
     }
-    if (!hasReactant && !hasProduct) return fail(`reaction ${reactionName(r)} has all stoichiometric coefficients zero`);
-    if (!hasReactant) return fail(`reaction ${reactionName(r)} has no reactants (a balanced reaction needs both sides)`);
-    if (!hasProduct) return fail(`reaction ${reactionName(r)} has no products (a balanced reaction needs both sides)`);
-    if (!isFiniteNumber(re.lnK)) return fail(`reaction ${reactionName(r)} has a ln K that is not a finite number`);
+    if (!hasReactant && !hasProduct) return fail(`reaction ${reactionName(reactions, r)} has all stoichiometric coefficients zero`);
+    if (!hasReactant) return fail(`reaction ${reactionName(reactions, r)} has no reactants (a balanced reaction needs both sides)`);
+    if (!hasProduct) return fail(`reaction ${reactionName(reactions, r)} has no products (a balanced reaction needs both sides)`);
+    if (!isFiniteNumber(re.lnK)) return fail(`reaction ${reactionName(reactions, r)} has a ln K that is not a finite number`);
     lnK[r] = re.lnK;
   }
 
-  // Linear dependence among all reactions: a dependent reaction's ln K must agree.
-  const allRows: number[] = [];
-  for (let r = 0; r < R; r++) allRows.push(r);
-  const dependence = independentRows(nu, S, allRows);
-  for (const dep of dependence.dependent) {
-    let combined = 0;
-    let magnitude = Math.abs(lnK[dep.row]);
-    for (let k = 0; k < dependence.basis.length; k++) {
-      const c = dep.coefficients[k];
-      if (c === 0) continue;
-      combined += c * lnK[dependence.basis[k]];
-      magnitude += Math.abs(c * lnK[dependence.basis[k]]);
-    }
-    if (!(Math.abs(combined - lnK[dep.row]) <= DEPENDENT_LNK_TOLERANCE + LNK_ROUNDING * magnitude)) {
-      const parts = dependence.basis.filter((_, k) => dep.coefficients[k] !== 0).map((b) => `"${reactions[b].label}"`);
-      return fail(
-        `reaction "${reactions[dep.row].label}" is a combination of ${parts.join(', ')} but its ln K (${lnK[dep.row]}) ` +
-          `disagrees with theirs (${combined}): the equilibrium constants are inconsistent`,
-      );
-    }
+  // Linear dependence among all reactions: a dependent reaction's ln K must agree. A single
+  // reaction (it has a non-zero coefficient) is independent: nothing to check.
+  let dependence: Dependence | undefined;
+  if (R > 1) {
+    const allRows: number[] = [];
+    for (let r = 0; r < R; r++) allRows.push(r);
+    dependence = independentRows(nu, S, allRows);
+    const inconsistent = inconsistentDependence(dependence, lnK, reactions);
+    if (inconsistent) return fail(inconsistent);
   }
 
   // Which reactions can run, and which species can ever form (fixed point from what is present).
-  const formable = new Uint8Array(S);
-  for (let i = 0; i < S; i++) if (n0[i] > 0) formable[i] = 1;
-  const runForward = new Uint8Array(R);
-  const runBackward = new Uint8Array(R);
+  const formable = arrays.formable;
+  const runForward = arrays.runForward;
+  const runBackward = arrays.runBackward;
+  for (let i = 0; i < S; i++) formable[i] = n0[i] > 0 ? 1 : 0;
+  for (let r = 0; r < R; r++) {
+    runForward[r] = 0;
+    runBackward[r] = 0;
+  }
   const kicks: number[] = [];
   for (let changed = true; changed; ) {
     changed = false;
@@ -195,52 +256,67 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
       }
     }
   }
-  const active = new Uint8Array(R);
+  const active = arrays.active;
   const inactive: number[] = [];
-  const activeRows: number[] = [];
   for (let r = 0; r < R; r++) {
-    if (runForward[r] || runBackward[r]) {
-      active[r] = 1;
-      activeRows.push(r);
-    } else inactive.push(r);
+    active[r] = runForward[r] || runBackward[r] ? 1 : 0;
+    if (!active[r]) inactive.push(r);
   }
-  const activeDependence = independentRows(nu, S, activeRows);
-  const basis = Int32Array.from(activeDependence.basis);
-  const rho = basis.length;
-  const basisCoefficients = new Float64Array(R * rho);
+  // The independent active reactions. With every reaction active this is the elimination
+  // above (same rows, same order); a single active reaction is independent by itself.
+  const activeDependence = activeIndependence(nu, S, R, active, inactive.length, dependence);
+  const rho = activeDependence.basis.length;
+  if (arrays.basis.length !== rho) arrays.basis = new Int32Array(rho);
+  const basis = arrays.basis;
+  for (let k = 0; k < rho; k++) basis[k] = activeDependence.basis[k];
+  if (arrays.basisCoefficients.length !== R * rho) arrays.basisCoefficients = new Float64Array(R * rho);
+  const basisCoefficients = arrays.basisCoefficients;
+  for (let q = 0; q < R * rho; q++) basisCoefficients[q] = 0;
   for (let k = 0; k < rho; k++) basisCoefficients[basis[k] * rho + k] = 1;
   for (const dep of activeDependence.dependent) for (let k = 0; k < rho; k++) basisCoefficients[dep.row * rho + k] = dep.coefficients[k];
 
-  const touched = new Uint8Array(S);
-  for (const r of basis) for (let i = 0; i < S; i++) if (nu[r * S + i] !== 0) touched[i] = 1;
+  const touched = arrays.touched;
+  for (let i = 0; i < S; i++) touched[i] = 0;
+  for (let k = 0; k < rho; k++) {
+    const r = basis[k];
+    for (let i = 0; i < S; i++) if (nu[r * S + i] !== 0) touched[i] = 1;
+  }
   let touchedCount = 0;
   for (let i = 0; i < S; i++) touchedCount += touched[i];
-  const variable = new Int32Array(touchedCount);
+  if (arrays.variable.length !== touchedCount) arrays.variable = new Int32Array(touchedCount);
+  const variable = arrays.variable;
   for (let i = 0, j = 0; i < S; i++) if (touched[i]) variable[j++] = i;
 
   // Activity models. A mole-fraction phase with a single member (no inert member either)
   // is a pure phase: its activity is constant while it is present.
-  const members = [0, 0];
-  const groupInert = new Float64Array(2);
+  let gasMembers = 0;
+  let liquidMembers = 0;
+  const groupInert = arrays.groupInert;
+  groupInert[GAS_GROUP] = 0;
+  groupInert[LIQUID_GROUP] = 0;
   for (let i = 0; i < S; i++) {
     const g = groupOf(species[i].phase, conditions.kind);
     if (g < 0) continue;
-    if (touched[i] || n0[i] > 0) members[g]++;
+    if (touched[i] || n0[i] > 0) {
+      if (g === GAS_GROUP) gasMembers++;
+      else liquidMembers++;
+    }
     if (!touched[i]) groupInert[g] += n0[i];
   }
-  const model = new Int8Array(S);
-  const group = new Int8Array(S).fill(-1);
-  const offset = new Float64Array(S);
+  const model = arrays.model;
+  const group = arrays.group;
+  const offset = arrays.offset;
   const lnAqueous = liquidVolume !== undefined ? -Math.log(liquidVolume * STANDARD_CONCENTRATION) : 0;
   for (let i = 0; i < S; i++) {
     const phase = species[i].phase;
     const g = groupOf(phase, conditions.kind);
+    group[i] = -1;
     if (phase === 's' || phase === 'solvent') {
       model[i] = PURE;
       offset[i] = 0;
     } else if (g >= 0) {
       const gasOffset = g === GAS_GROUP ? lnGasOffset : 0;
-      if (members[g] <= 1) {
+      if ((g === GAS_GROUP ? gasMembers : liquidMembers) <= 1) {
         model[i] = PURE;
         offset[i] = gasOffset;
       } else {
@@ -280,9 +356,53 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
       basisCoefficients,
       kicks,
       variable,
+      touched,
       totalAmount,
     },
   };
+}
+
+/**
+ * The message for a dependent reaction whose ln K disagrees with the same combination of
+ * the independent ones' (beyond DEPENDENT_LNK_TOLERANCE plus rounding), or undefined.
+ */
+function inconsistentDependence(dependence: Dependence, lnK: Float64Array, reactions: EquilibriumProblem['reactions']): string | undefined {
+  for (const dep of dependence.dependent) {
+    let combined = 0;
+    let magnitude = Math.abs(lnK[dep.row]);
+    for (let k = 0; k < dependence.basis.length; k++) {
+      const c = dep.coefficients[k];
+      if (c === 0) continue;
+      combined += c * lnK[dependence.basis[k]];
+      magnitude += Math.abs(c * lnK[dependence.basis[k]]);
+    }
+    if (!(Math.abs(combined - lnK[dep.row]) <= DEPENDENT_LNK_TOLERANCE + LNK_ROUNDING * magnitude)) {
+      const parts = dependence.basis.filter((_, k) => dep.coefficients[k] !== 0).map((b) => `"${reactions[b].label}"`);
+      return (
+        `reaction "${reactions[dep.row].label}" is a combination of ${parts.join(', ')} but its ln K (${lnK[dep.row]}) ` +
+        `disagrees with theirs (${combined}): the equilibrium constants are inconsistent`
+      );
+    }
+  }
+  return undefined;
+}
+
+/** Basis of one reaction that is independent by itself (it has a non-zero coefficient). */
+const SINGLE_BASIS: Dependence = { basis: [0], dependent: [] };
+/** No active reaction. */
+const EMPTY_BASIS: Dependence = { basis: [], dependent: [] };
+
+/**
+ * Greedy independence of the active reactions in input order. Exact shortcuts: with every
+ * reaction active it is `all` (the elimination of all reactions, when there are several);
+ * a single reaction is independent when active.
+ */
+function activeIndependence(nu: Float64Array, S: number, R: number, active: Uint8Array, inactiveCount: number, all: Dependence | undefined): Dependence {
+  if (inactiveCount === 0 && all) return all;
+  if (R === 1) return active[0] ? SINGLE_BASIS : EMPTY_BASIS;
+  const activeRows: number[] = [];
+  for (let r = 0; r < R; r++) if (active[r]) activeRows.push(r);
+  return independentRows(nu, S, activeRows);
 }
 
 function groupOf(phase: SolverPhase, kind: 'constant-pressure' | 'constant-volume'): number {

@@ -78,14 +78,45 @@ export function solveEquilibrium(problem: EquilibriumProblem): EquilibriumResult
   }
 }
 
+/**
+ * Work arrays of a solve (amounts, ln a, extents, ln a at n0), kept for the next solve of the
+ * same size like the prepared problem's arrays (problem.ts): they never reach the result,
+ * which `build` makes from copies, and solves are not re-entrant.
+ */
+class SolveArrays {
+  readonly n: Float64Array;
+  /** ln a in the reaction-quotient convention at the amounts being checked and reported. */
+  readonly logA: Float64Array;
+  readonly extents: Float64Array;
+  /** ln a at the initial amounts, for lnQ0. */
+  readonly startLogA: Float64Array;
+  constructor(
+    readonly speciesCount: number,
+    readonly reactionCount: number,
+  ) {
+    this.n = new Float64Array(speciesCount);
+    this.logA = new Float64Array(speciesCount);
+    this.extents = new Float64Array(reactionCount);
+    this.startLogA = new Float64Array(speciesCount);
+  }
+}
+
+let pooledSolveArrays: SolveArrays | undefined;
+
+function solveArrays(p: Prepared): SolveArrays {
+  const a = pooledSolveArrays;
+  if (a && a.speciesCount === p.speciesCount && a.reactionCount === p.reactionCount) return a;
+  pooledSolveArrays = new SolveArrays(p.speciesCount, p.reactionCount);
+  return pooledSolveArrays;
+}
+
 function solveChecked(problem: EquilibriumProblem): EquilibriumResult {
   const prepared = prepare(problem);
   if (!prepared.ok) return invalidShaped(problem, 'invalid', prepared.message);
   const p = prepared.prepared;
-  const n = Float64Array.from(p.n0);
-  /** ln a in the reaction-quotient convention at the amounts being checked and reported. */
-  const logA = new Float64Array(p.speciesCount);
-  const extents = new Float64Array(p.reactionCount);
+  const { n, logA, extents } = solveArrays(p);
+  for (let i = 0; i < p.speciesCount; i++) n[i] = p.n0[i];
+  for (let r = 0; r < p.reactionCount; r++) extents[r] = 0;
   const rho = p.basis.length;
   if (rho === 0) {
     quotientLogActivities(p, n, logA);
@@ -124,7 +155,9 @@ function solveChecked(problem: EquilibriumProblem): EquilibriumResult {
   const vanishing = vanishingPhase(p, n);
   if (vanishing) message = `${message} (${vanishing})`;
   quotientLogActivities(p, p.n0, logA);
-  return build(p, Float64Array.from(p.n0), logA, new Float64Array(p.reactionCount), 'failed', message, iterations, 'newton');
+  n.set(p.n0);
+  extents.fill(0);
+  return build(p, n, logA, extents, 'failed', message, iterations, 'newton');
 }
 
 /**
@@ -328,7 +361,7 @@ function verifyConservation(p: Prepared, n: Float64Array, total: number, laws?: 
     const violation = Math.abs(dot2Difference(basis, l * m, nv, n0v, m)) / size;
     if (!(violation <= CONSERVATION_TOLERANCE * total)) return `a conservation law is violated by ${violation / total} of the total amount`;
   }
-  for (let i = 0; i < S; i++) if (!p.variable.includes(i) && n[i] !== p.n0[i]) return `species "${species[i].id}" takes part in no reaction but changed`;
+  for (let i = 0; i < S; i++) if (!p.touched[i] && n[i] !== p.n0[i]) return `species "${species[i].id}" takes part in no reaction but changed`;
   return undefined;
 }
 
@@ -398,7 +431,7 @@ function build(
   const { problem } = p;
   const lnQ = new Array<number>(R);
   for (let r = 0; r < R; r++) lnQ[r] = lnQuotient(p, r, logA);
-  const start = new Float64Array(S);
+  const start = solveArrays(p).startLogA;
   quotientLogActivities(p, p.n0, start);
   const lnQ0 = new Array<number>(R);
   for (let r = 0; r < R; r++) lnQ0[r] = lnQuotient(p, r, start);

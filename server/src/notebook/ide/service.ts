@@ -13,6 +13,7 @@ import { semanticTokens } from './semantic-tokens';
 import { completions } from './completion';
 import { formatting } from './formatting';
 import { balanceAllEdits, batchMarkdown, codeLenses, summary } from './commands';
+import { reportHtml, reportMarkdown } from './report';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -47,9 +48,11 @@ export interface NotebookService {
   batchMarkdown: typeof batchMarkdown;
   summary: typeof summary;
   codeLenses: typeof codeLenses;
+  reportMarkdown: typeof reportMarkdown;
+  reportHtml: typeof reportHtml;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting, balanceAllEdits, batchMarkdown, summary, codeLenses };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting, balanceAllEdits, batchMarkdown, summary, codeLenses, reportMarkdown, reportHtml };
 }
