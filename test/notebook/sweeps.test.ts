@@ -53,6 +53,29 @@ describe('sweeps', () => {
     expect(ks[1]).toBeGreaterThan(ks[2]);
   });
 
+  it('each point equals the batch solved at that value for pressure, vessel and an amount in mol too (property)', () => {
+    // N2O4(g) ⇌ 2 NO2(g), the standard textbook gas dissociation; K illustrative
+    const gas = (header: string, lines: string[]): string =>
+      ['split: N2O4(g) <=> 2 NO2(g)', '  K = 0.15 at 25 °C', header, '  N2O4(g) 1 mol', '  NO2(g) 0.1 mol', ...lines, ''].join('\n');
+    const cases: { header: string; vary: string; at: (v: number) => { header: string; lines: string[] }; extra?: string[] }[] = [
+      { header: 'batch g at 25 °C, 1 bar', vary: '  vary P in 0.5, 2, 8 bar', at: (v) => ({ header: `batch g at 25 °C, ${v} bar`, lines: [] }) },
+      { header: 'batch g at 25 °C', vary: '  vary vessel in 5, 20, 80 L', at: (v) => ({ header: 'batch g at 25 °C', lines: [`  vessel ${v} L`] }), extra: ['  vessel 10 L'] },
+      { header: 'batch g at 25 °C, 1 bar', vary: '  vary NO2 in 0, 0.5, 2 mol', at: (v) => ({ header: 'batch g at 25 °C, 1 bar', lines: [] }) },
+    ];
+    for (const c of cases) {
+      const a = analyse(gas(c.header, [...(c.extra ?? []), c.vary]));
+      const [s] = a.sweeps.get(a.model.batches[0])!;
+      for (const p of s.points) {
+        const at = c.at(p.written);
+        let text = gas(at.header, at.lines);
+        if (c.vary.includes('NO2')) text = text.replace('  NO2(g) 0.1 mol', `  NO2(g) ${p.written} mol`);
+        const single = analyse(text);
+        const r = single.results.get(single.model.batches[0])!;
+        for (let i = 0; i < r.equilibrium.length; i++) expect(rel(p.result!.equilibrium[i], r.equilibrium[i])).toBeLessThan(1e-12);
+      }
+    }
+  });
+
   it('shows a table per sweep in the report', () => {
     const a = analyse(ESTER(['  vary EtOH in 1, 3 equiv']));
     const report = batchReport(a, a.model.batches[0]);

@@ -374,7 +374,7 @@ export function hessThermo(r: ReactionModel): ReactionThermo | undefined {
 }
 
 /** ΔH° at T of a reaction: its own data, else Hess's law; undefined when unknown. */
-function enthalpyOf(r: ReactionModel, T: number): number | undefined {
+export function enthalpyOf(r: ReactionModel, T: number): number | undefined {
   const own = r.thermo ? enthalpyAt(r.thermo, T) : undefined;
   if (own !== undefined) return own;
   const hess = hessThermo(r);

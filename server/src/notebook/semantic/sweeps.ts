@@ -7,7 +7,7 @@ import { parseNumber, parseUnit, type Dimension } from '../../chem/units';
 import type { SweepNode } from '../syntax/tree';
 import { diagnostic, type Diagnostic } from './codes';
 import type { BatchAmount, BatchModel, NotebookModel } from './model';
-import { batchInputs } from './batch-inputs';
+import { batchInputs, enthalpyOf, kAt, type BatchInputs, type ReversibleInput } from './batch-inputs';
 import { solveBatch, type BatchResult, type SolveCache } from './batch-results';
 
 /** Most points one sweep may have. */
@@ -149,12 +149,47 @@ export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: Solv
   return { sweeps: solveSweeps(batch, sweeps, model, cache), diagnostics };
 }
 
+/**
+ * The batch's solver inputs with the variable at `value`, derived from the batch's own inputs
+ * where only one thing changes (temperature: each K and ΔH° again; pressure; vessel; an amount
+ * in mol), so a long sweep does not redo the whole batch reading at every point. Other amount
+ * units (mass, equiv, ...) go through the full reading, since they feed into other amounts.
+ */
+export function pointInputs(base: BatchInputs, batch: BatchModel, variable: SweepVariable, dimension: Dimension, value: number, model: NotebookModel): BatchInputs | undefined {
+  switch (variable.kind) {
+    case 'temperature': {
+      const reversible: ReversibleInput[] = [];
+      for (const r of base.reversible) {
+        const k = kAt(r.reaction, model, value);
+        if (!k) return undefined;
+        reversible.push({ ...r, lnK: k.lnK, source: k.source, dH: enthalpyOf(r.reaction, value) });
+      }
+      const oneWay = base.oneWay.map((r) => ({ ...r, dH: enthalpyOf(r.reaction, value) }));
+      return { ...base, temperature: value, reversible, oneWay };
+    }
+    case 'pressure':
+      return base.conditions.kind === 'constant-pressure' ? { ...base, conditions: { kind: 'constant-pressure', P: value } } : batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+    case 'vessel':
+      return base.conditions.kind === 'constant-volume' && batch.volume === undefined
+        ? { ...base, conditions: { kind: 'constant-volume', gasVolume: value } }
+        : batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+    case 'amount': {
+      const label = variable.amount.node.species.text;
+      const i = base.species.findIndex((s) => s.label === label);
+      const isBasis = base.basis === i;
+      if (dimension !== 'amount' || i < 0 || isBasis) return batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+      return { ...base, species: base.species.map((s, k) => (k === i ? { ...s, charged: value, chargedFrom: undefined } : s)) };
+    }
+  }
+}
+
 /** Solves the batch at every point of each sweep. */
 export function solveSweeps(batch: BatchModel, sweeps: readonly SweepModel[], model: NotebookModel, cache: SolveCache): SweepResult[] {
+  const base = batchInputs(batch, model).inputs;
   return sweeps.map((sweep) => ({
     sweep,
     points: sweep.values.map((value, i) => {
-      const inputs = batchInputs(variant(batch, sweep, value), model).inputs;
+      const inputs = base ? pointInputs(base, batch, sweep.variable, sweep.dimension, value, model) : undefined;
       return { written: sweep.written[i], result: inputs ? solveBatch(inputs, cache) : undefined };
     }),
   }));

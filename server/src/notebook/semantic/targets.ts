@@ -11,7 +11,7 @@ import type { BatchModel, NotebookModel } from './model';
 import { batchInputs } from './batch-inputs';
 import { solveBatch, type BatchResult, type SolveCache } from './batch-results';
 import { readQuantity } from './properties';
-import { resolveVariable, variant, type SweepVariable } from './sweeps';
+import { pointInputs, resolveVariable, type SweepVariable } from './sweeps';
 
 /** Points of the scan for brackets, and bisection steps per bracket. */
 const SCAN_POINTS = 41;
@@ -156,8 +156,9 @@ function ownValue(batch: BatchModel, variable: SweepVariable): { value: number; 
 }
 
 function solveTarget(t: TargetModel, batch: BatchModel, model: NotebookModel, cache: SolveCache): TargetResult {
+  const base = batchInputs(batch, model).inputs;
   const at = (x: number): { result?: BatchResult; q?: number } => {
-    const inputs = batchInputs(variant(batch, { variable: t.variable, dimension: t.dimension }, t.toSI(x)), model).inputs;
+    const inputs = base ? pointInputs(base, batch, t.variable, t.dimension, t.toSI(x), model) : undefined;
     if (!inputs) return {};
     const result = solveBatch(inputs, cache);
     return { result, q: quantityOf(t, result) };
