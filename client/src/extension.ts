@@ -6,6 +6,8 @@ import {
   commands,
   env,
   StatusBarAlignment,
+  Uri,
+  ViewColumn,
   window,
   workspace,
   type ExtensionContext,
@@ -123,6 +125,35 @@ export async function activate(context: ExtensionContext): Promise<void> {
       const md = await client.sendRequest<string | null>('workspace/executeCommand', { command: 'stillpoint.server.report', arguments: [uri] });
       if (!md) return;
       await window.showTextDocument(await workspace.openTextDocument({ language: 'markdown', content: md }));
+    }),
+    commands.registerCommand('stillpoint.showChart', async (uriArg?: string, nameArg?: string, indexArg?: number) => {
+      const uri = uriArg ?? activeUri();
+      if (!uri || !client) return;
+      let name = nameArg;
+      if (!name) {
+        const names = await client.sendRequest<string[]>('workspace/executeCommand', { command: 'stillpoint.server.batchNames', arguments: [uri] });
+        name = names.length === 1 ? names[0] : await window.showQuickPick(names, { placeHolder: 'Chart the sweep of which batch?' });
+      }
+      if (!name) return;
+      const svg = await client.sendRequest<string | null>('workspace/executeCommand', { command: 'stillpoint.server.chart', arguments: [uri, name, indexArg ?? 0] });
+      if (!svg) {
+        void window.showInformationMessage(`Batch ${name} has no solved sweep: add a line such as "vary T from 40 to 120 °C step 10".`);
+        return;
+      }
+      const panel = window.createWebviewPanel('stillpoint.chart', `Equilibrium chart: ${name}`, ViewColumn.Beside, {
+        enableScripts: false,
+        localResourceRoots: [Uri.file(context.asAbsolutePath('media'))],
+      });
+      const nonce = Array.from({ length: 32 }, () => Math.floor(Math.random() * 16).toString(16)).join('');
+      panel.webview.html = [
+        '<!DOCTYPE html><html><head><meta charset="utf-8">',
+        `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'nonce-${nonce}'; img-src ${panel.webview.cspSource};">`,
+        `<style nonce="${nonce}">body{color:var(--vscode-editor-foreground);background:var(--vscode-editor-background);font-family:var(--vscode-font-family)}svg{max-width:100%;height:auto}</style>`,
+        '</head><body>',
+        svg,
+        '<p>Ideal equilibrium estimates, not a process-safety assessment. Hover a point for its value.</p>',
+        '</body></html>',
+      ].join('\n');
     }),
     commands.registerCommand('stillpoint.restartServer', async () => {
       await client?.restart();

@@ -81,6 +81,23 @@ describe('commands and code lenses', () => {
   });
 });
 
+describe('charts', () => {
+  it('puts a chart lens on each solved vary line, and the server command returns the SVG', async () => {
+    const text = TEXT.replace('  uses esterify\n', '  uses esterify\n  vary EtOH from 1 to 4 mol step 1\n');
+    const c = new LspTestClient();
+    client = c;
+    await c.initialize();
+    c.notify('textDocument/didOpen', { textDocument: { uri: URI, languageId: 'eqnb', version: 1, text } });
+    await c.waitFor<Published>('textDocument/publishDiagnostics', (p) => p.uri === URI);
+    const lenses = await c.request<{ range: { start: { line: number } }; command: { title: string; command: string; arguments: unknown[] } }[]>('textDocument/codeLens', { textDocument: { uri: URI } });
+    const chart = lenses.find((l) => l.command.command === 'stillpoint.showChart');
+    expect(chart?.range.start.line).toBe(10);
+    expect(chart?.command.arguments).toEqual([URI, 'trial-1', 0]);
+    const svg = await c.request<string>('workspace/executeCommand', { command: 'stillpoint.server.chart', arguments: [URI, 'trial-1', 0] });
+    expect(svg.startsWith('<svg xmlns="http://www.w3.org/2000/svg"')).toBe(true);
+  });
+});
+
 describe('diagnostics settings', () => {
   it('silences listed codes and overrides severities from the initialization options', async () => {
     client = await open({ diagnosticsDelayMs: 0, diagnostics: { silence: ['unbalanced-elements'], severity: {} } });

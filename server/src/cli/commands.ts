@@ -9,6 +9,7 @@ import { rewriteEquation } from '../notebook/semantic/balance-check';
 import { createNotebookService, type Analysis, type Diagnostic } from '../notebook/ide/service';
 import { solve } from './solve';
 import { report } from './report';
+import { chart } from './chart';
 
 const USAGE = `usage: stillpoint COMMAND [ARGS] [--json]
 
@@ -20,6 +21,8 @@ commands:
                                 equilibrium composition of each batch (or one)
   report FILE [--format md|html] [--out FILE]
                                 the whole notebook as a document for a lab record
+  chart FILE --batch NAME [--out FILE.svg]
+                                an SVG chart of the batch's sweep (its first vary line)
   help                          show this text
 
 exit status: 0 success, 1 an error diagnostic or failure, 2 bad usage`;
@@ -61,8 +64,9 @@ export function runCli(argv: readonly string[], io: CliIo): number {
   try {
     const { args, json, batch, format, out } = parseOptions(argv);
     const [command, ...rest] = args;
-    if (batch !== undefined && command !== 'solve') throw new UsageError('--batch belongs to `solve`');
-    if ((format !== undefined || out !== undefined) && command !== 'report') throw new UsageError('--format and --out belong to `report`');
+    if (batch !== undefined && command !== 'solve' && command !== 'chart') throw new UsageError('--batch belongs to `solve` and `chart`');
+    if (format !== undefined && command !== 'report') throw new UsageError('--format belongs to `report`');
+    if (out !== undefined && command !== 'report' && command !== 'chart') throw new UsageError('--out belongs to `report` and `chart`');
     switch (command) {
       case 'check':
         if (rest.length === 0) throw new UsageError('check needs at least one file or folder');
@@ -80,6 +84,9 @@ export function runCli(argv: readonly string[], io: CliIo): number {
         if (rest.length !== 1) throw new UsageError('report takes one notebook file');
         if (format !== undefined && format !== 'md' && format !== 'html') throw new UsageError('--format is md or html');
         return report(rest[0], format === 'html' ? 'html' : 'md', out, io);
+      case 'chart':
+        if (rest.length !== 1 || batch === undefined) throw new UsageError('chart takes one notebook file and --batch NAME');
+        return chart(rest[0], batch, out, io);
       case 'help':
       case '-h':
         io.out(USAGE);

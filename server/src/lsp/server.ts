@@ -30,6 +30,7 @@ export const SERVER_COMMANDS = {
   batchMarkdown: 'stillpoint.server.batchMarkdown',
   batchNames: 'stillpoint.server.batchNames',
   report: 'stillpoint.server.report',
+  chart: 'stillpoint.server.chart',
 } as const;
 
 /** The notification that carries a notebook's summary to the client's status bar. */
@@ -228,7 +229,10 @@ export function startServer(connection: Connection): void {
       if (!analysis) return [];
       return service.codeLenses(analysis).map((l) => ({
         range: toRange(analysis, l.start, l.end),
-        command: { title: l.title, command: 'stillpoint.copyBatchResults', arguments: [params.textDocument.uri, l.batch] },
+        command:
+          l.action === 'chart'
+            ? { title: l.title, command: 'stillpoint.showChart', arguments: [params.textDocument.uri, l.batch, l.sweep ?? 0] }
+            : { title: l.title, command: 'stillpoint.copyBatchResults', arguments: [params.textDocument.uri, l.batch] },
       }));
     }),
   );
@@ -243,6 +247,11 @@ export function startServer(connection: Connection): void {
         return typeof name === 'string' ? (runSafe(connection, 'batch table', undefined, () => service.batchMarkdown(analysis, name)) ?? null) : null;
       case SERVER_COMMANDS.batchNames:
         return analysis.model.batches.map((b) => b.name);
+      case SERVER_COMMANDS.chart: {
+        const index = typeof (params.arguments ?? [])[2] === 'number' ? ((params.arguments ?? [])[2] as number) : 0;
+        const batch = analysis.model.batches.find((b) => b.name === name);
+        return batch ? (runSafe(connection, 'chart', undefined, () => service.batchChartSvg(analysis, batch, index)) ?? null) : null;
+      }
       case SERVER_COMMANDS.report:
         return runSafe(connection, 'report', null, () => service.reportMarkdown(analysis, `Equilibrium notebook: ${decodeURIComponent(uri.split('/').pop() ?? uri)}`));
       case SERVER_COMMANDS.balanceAll: {

@@ -60,6 +60,9 @@ export interface CodeLens {
   readonly end: number;
   readonly title: string;
   readonly batch: string;
+  /** What clicking does: copy the batch's results, or show the chart of its sweep number `sweep`. */
+  readonly action: 'copy' | 'chart';
+  readonly sweep?: number;
 }
 
 /** Above each batch: its headline result and the offer to copy its results. */
@@ -69,7 +72,14 @@ export function codeLenses(analysis: Analysis): CodeLens[] {
     if (!b.node.name) continue;
     const r = batchReport(analysis, b);
     const headline = r.solved ? (r.headline ?? 'solved') : 'not solved';
-    out.push({ start: b.node.start, end: b.node.name.end, title: `${headline} · copy results`, batch: b.name });
+    out.push({ start: b.node.start, end: b.node.name.end, title: `${headline} · copy results`, batch: b.name, action: 'copy' });
+    let sweep = 0;
+    for (const line of b.node.properties) {
+      if (line.type !== 'sweep') continue;
+      const solved = analysis.sweeps.get(b)?.[sweep] !== undefined;
+      if (solved) out.push({ start: line.start, end: line.end, title: 'show equilibrium chart', batch: b.name, action: 'chart', sweep });
+      if (solved) sweep++;
+    }
   }
   return out;
 }

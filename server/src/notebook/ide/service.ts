@@ -14,6 +14,7 @@ import { completions } from './completion';
 import { formatting } from './formatting';
 import { balanceAllEdits, batchMarkdown, codeLenses, summary } from './commands';
 import { reportHtml, reportMarkdown } from './report';
+import { batchChartSvg } from './chart';
 
 export type { Analysis } from './analysis';
 export type { CodeAction } from './actions';
@@ -50,9 +51,10 @@ export interface NotebookService {
   codeLenses: typeof codeLenses;
   reportMarkdown: typeof reportMarkdown;
   reportHtml: typeof reportHtml;
+  batchChartSvg: typeof batchChartSvg;
 }
 
 export function createNotebookService(): NotebookService {
   const caches = createCaches();
-  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting, balanceAllEdits, batchMarkdown, summary, codeLenses, reportMarkdown, reportHtml };
+  return { analyse: (text) => analyse(text, caches), hover, codeActions, documentSymbols, inlayHints, batchReport, definition, references, documentHighlights, prepareRename, rename, foldingRanges, semanticTokens, completions, formatting, balanceAllEdits, batchMarkdown, summary, codeLenses, reportMarkdown, reportHtml, batchChartSvg };
 }
