@@ -3,6 +3,7 @@
 // must be reported on their text.
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/notebook/ide/analysis';
+import { esterNotebook } from '../support/notebooks';
 import { batchReport } from '../../server/src/notebook/ide/batch-report';
 import { runCli } from '../../server/src/cli/commands';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -16,19 +17,7 @@ const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 // classic textbook esterification example).
 const conversion = (n: number): number => (4 * (1 + n) - Math.sqrt(16 * (1 + n) ** 2 - 48 * n)) / 6;
 
-const ESTER = (lines: string[]): string =>
-  [
-    'species acid = C6H12O2 (l)',
-    'species EtOH = C2H5OH (l)',
-    'esterify: acid + EtOH <=> C8H16O2(l) + H2O(l)',
-    '  K = 4.0 at 60 °C',
-    '  ΔH° = -4.5 kJ/mol',
-    'batch b at 60 °C',
-    '  acid 1.0 mol',
-    '  EtOH 1 equiv',
-    ...lines,
-    '',
-  ].join('\n');
+const ESTER = esterNotebook;
 
 describe('sweeps', () => {
   it('an excess sweep follows the closed form at every point', () => {

@@ -3,23 +3,12 @@
 // unreachable goal must say so with the best value in the range.
 import { describe, expect, it } from 'vitest';
 import { analyse } from '../../server/src/notebook/ide/analysis';
+import { esterNotebook } from '../support/notebooks';
 import { batchReport } from '../../server/src/notebook/ide/batch-report';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
-const ESTER = (lines: string[]): string =>
-  [
-    'species acid = C6H12O2 (l)',
-    'species EtOH = C2H5OH (l)',
-    'esterify: acid + EtOH <=> C8H16O2(l) + H2O(l)',
-    '  K = 4.0 at 60 °C',
-    '  ΔH° = -4.5 kJ/mol',
-    'batch b at 60 °C',
-    '  acid 1.0 mol',
-    '  EtOH 1 equiv',
-    ...lines,
-    '',
-  ].join('\n');
+const ESTER = esterNotebook;
 
 describe('targets', () => {
   it('finds the excess for a target conversion: n = x + x²/(K(1 − x)) (closed form for A + B ⇌ C + D)', () => {
