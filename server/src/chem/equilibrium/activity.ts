@@ -1,7 +1,7 @@
 // Activities and reaction quotients. `activities` is the public, model-free
 // definition (used by tests and hovers); the log forms below work on a
 // prepared problem and keep full relative precision for trace amounts.
-import { PURE, type Prepared } from './problem';
+import { GAS_GROUP, LIQUID_GROUP, PURE, type Prepared } from './problem';
 import { GAS_CONSTANT, STANDARD_CONCENTRATION, STANDARD_PRESSURE, type EquilibriumProblem, type SolverPhase } from './types';
 
 /**
@@ -47,16 +47,31 @@ function activity(problem: EquilibriumProblem, phase: SolverPhase, amount: numbe
  * Inert members of a mole-fraction phase count in its total.
  */
 export function quotientLogActivities(p: Prepared, n: ArrayLike<number>, out: Float64Array): void {
-  const totals = [0, 0];
+  let gasTotal = 0;
+  let liquidTotal = 0;
   for (let i = 0; i < p.speciesCount; i++) {
     const g = p.group[i];
-    if (g >= 0) totals[g] += n[i];
+    if (g === GAS_GROUP) gasTotal += n[i];
+    else if (g === LIQUID_GROUP) liquidTotal += n[i];
   }
-  // Inert members of a mole-fraction phase are FRACTION species of the same group, so the totals include them.
+  // Inert members of a mole-fraction phase are FRACTION species of the same group, so the
+  // totals include them. The ln of a group total is taken once, when first needed.
+  let logGas = Number.NaN;
+  let logLiquid = Number.NaN;
   for (let i = 0; i < p.speciesCount; i++) {
     if (p.model[i] === PURE) out[i] = p.offset[i];
-    else if (n[i] > 0) out[i] = Math.log(n[i]) + p.offset[i] - (p.group[i] >= 0 ? Math.log(totals[p.group[i]]) : 0);
-    else out[i] = Number.NEGATIVE_INFINITY;
+    else if (n[i] > 0) {
+      const g = p.group[i];
+      let logTotal = 0;
+      if (g === GAS_GROUP) {
+        if (Number.isNaN(logGas)) logGas = Math.log(gasTotal);
+        logTotal = logGas;
+      } else if (g === LIQUID_GROUP) {
+        if (Number.isNaN(logLiquid)) logLiquid = Math.log(liquidTotal);
+        logTotal = logLiquid;
+      }
+      out[i] = Math.log(n[i]) + p.offset[i] - logTotal;
+    } else out[i] = Number.NEGATIVE_INFINITY;
   }
 }
 

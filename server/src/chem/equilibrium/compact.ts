@@ -36,6 +36,9 @@ export interface Compact {
   readonly mixtureIndex: Int32Array;
   /** Mole-fraction group (0 gas, 1 liquid) or -1. */
   readonly group: Int8Array;
+  /** Whether some variable species is in the gas group, and in the liquid group (else its ln N is never needed). */
+  readonly hasGasGroup: boolean;
+  readonly hasLiquidGroup: boolean;
   readonly offset: Float64Array;
   /**
    * Group amounts from species outside the variable set (inert members), plus the phantom
@@ -153,6 +156,12 @@ export function compact(p: Prepared): Compact {
       groupInert[g] = phantom[g];
     }
   }
+  let hasGasGroup = false;
+  let hasLiquidGroup = false;
+  for (let j = 0; j < m; j++) {
+    if (group[j] === 0) hasGasGroup = true;
+    else if (group[j] === 1) hasLiquidGroup = true;
+  }
   return {
     m,
     rho,
@@ -162,6 +171,8 @@ export function compact(p: Prepared): Compact {
     mixture,
     mixtureIndex,
     group,
+    hasGasGroup,
+    hasLiquidGroup,
     offset,
     groupInert,
     phantom,
@@ -183,8 +194,9 @@ export function groupTotals(c: Compact, n: Float64Array, totals: Float64Array): 
 
 /** ln a of every variable species into `out` (pure phases: their constant ln a). */
 export function logActivities(c: Compact, n: Float64Array, totals: Float64Array, out: Float64Array): void {
-  const lg0 = Math.log(totals[0]);
-  const lg1 = Math.log(totals[1]);
+  // ln N of a group only when it has members: only they use it (and the logarithm is the costly part here).
+  const lg0 = c.hasGasGroup ? Math.log(totals[0]) : 0;
+  const lg1 = c.hasLiquidGroup ? Math.log(totals[1]) : 0;
   for (let j = 0; j < c.m; j++) {
     if (!c.mixture[j]) {
       out[j] = c.offset[j];

@@ -117,12 +117,44 @@ export interface StageOutcome {
   readonly underflow?: number;
 }
 
-/** The starting point: n0, then each reaction that first makes a species formable is run a fraction of the way (closure order). */
+/**
+ * The arrays of the last extent state, reused by the next solve of the same shape: a state
+ * lives for one solve (the result is built from copies) and solves are not re-entrant.
+ */
+class StateArrays {
+  readonly n: Float64Array;
+  readonly xi: Float64Array;
+  readonly held: Uint8Array;
+  readonly absent = new Uint8Array(2);
+  /** initialState: compact position of each species, -1 outside the variable set. */
+  readonly position: Int32Array;
+  constructor(
+    readonly m: number,
+    readonly rho: number,
+    readonly speciesCount: number,
+  ) {
+    this.n = new Float64Array(m);
+    this.xi = new Float64Array(rho);
+    this.held = new Uint8Array(m);
+    this.position = new Int32Array(speciesCount);
+  }
+}
+
+let pooledState: StateArrays | undefined;
+
+/**
+ * The starting point: n0, then each reaction that first makes a species formable is run a
+ * fraction of the way (closure order). Valid until the next call (its arrays are reused).
+ */
 export function initialState(c: Compact, p: Prepared): ExtentState {
   const S = p.speciesCount;
-  const n = c.n0.slice();
-  const xi = new Float64Array(c.rho);
-  const position = new Int32Array(S).fill(-1);
+  if (!pooledState || pooledState.m !== c.m || pooledState.rho !== c.rho || pooledState.speciesCount !== S) pooledState = new StateArrays(c.m, c.rho, S);
+  const { n, xi, held, absent, position } = pooledState;
+  n.set(c.n0);
+  xi.fill(0);
+  held.fill(0);
+  absent.fill(0);
+  position.fill(-1);
   for (let j = 0; j < c.m; j++) position[c.species[j]] = j;
   for (let q = 0; q < p.kicks.length; q += 2) {
     const r = p.kicks[q];
@@ -141,7 +173,7 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
     for (let k = 0; k < c.rho; k++) xi[k] += p.basisCoefficients[r * c.rho + k] * eps;
   }
   for (let j = 0; j < c.m; j++) if (n[j] < 0) n[j] = 0;
-  return { n, xi, held: new Uint8Array(c.m), absent: new Uint8Array(2), iterations: 0, iterationBase: 0 };
+  return { n, xi, held, absent, iterations: 0, iterationBase: 0 };
 }
 
 /**
@@ -229,27 +261,37 @@ export function buildDirections(c: Compact, held: Uint8Array): Directions {
  * then appears in one direction only, so its 1/n sits on the Hessian diagonal instead of
  * swamping the curvature of combinations that do not involve it.
  */
-function adaptBasis(c: Compact, n: Float64Array, s: Float64Array, kappa: Float64Array, z: Float64Array, k: number, used: Uint8Array): void {
+function adaptBasis(c: Compact, n: Float64Array, s: Float64Array, kappa: Float64Array, z: Float64Array, k: number, ws: Workspace): void {
   const { m, rho } = c;
+  const { used, columnLargest, columnRow } = ws;
   used.fill(0);
   for (let step = 0; step < k; step++) {
+    // One pass over the remaining rows: the largest entry, and each column's largest entry
+    // with its first row: the values the two separate scans would give (Math.max keeps a NaN,
+    // which stops the rewrite; `>` skips it).
     let largest = 0;
-    for (let a = step; a < k; a++) for (let j = 0; j < m; j++) largest = Math.max(largest, Math.abs(s[a * m + j]));
+    for (let j = 0; j < m; j++) {
+      columnLargest[j] = 0;
+      columnRow[j] = -1;
+    }
+    for (let a = step; a < k; a++) {
+      for (let j = 0; j < m; j++) {
+        const v = Math.abs(s[a * m + j]);
+        largest = Math.max(largest, v);
+        if (v > columnLargest[j]) {
+          columnLargest[j] = v;
+          columnRow[j] = a;
+        }
+      }
+    }
     if (!(largest > 0)) return;
     let col = -1;
     let row = -1;
     let best = Infinity;
     for (let j = 0; j < m; j++) {
       if (used[j]) continue;
-      let r = -1;
-      let big = 0;
-      for (let a = step; a < k; a++) {
-        const v = Math.abs(s[a * m + j]);
-        if (v > big) {
-          big = v;
-          r = a;
-        }
-      }
+      const r = columnRow[j];
+      const big = columnLargest[j];
       if (big < BASIS_PIVOT_RATIO * largest) continue;
       const weight = c.mixture[j] ? n[j] : Infinity;
       if (col < 0 || weight < best) {
@@ -355,9 +397,7 @@ class Workspace {
   readonly rho: number;
   readonly mixtures: number;
   readonly totals = new Float64Array(2);
-  readonly trialTotals = new Float64Array(2);
   readonly logA: Float64Array;
-  readonly trialLogA: Float64Array;
   readonly trial: Float64Array;
   readonly d: Float64Array;
   readonly dxi: Float64Array;
@@ -371,17 +411,32 @@ class Workspace {
   readonly kappa: Float64Array;
   readonly z: Float64Array;
   readonly used: Uint8Array;
+  /** adaptBasis: each column's largest entry among the remaining rows, and its first row. */
+  readonly columnLargest: Float64Array;
+  readonly columnRow: Int32Array;
   /** Directions weighted by 1/√n on the mixture species (k × mixture count) and the weights. */
   readonly weighted: Float64Array;
   readonly rootWeight: Float64Array;
+  /** Per direction, the mixture positions of its non-zero weighted entries (k × mixture count), and how many. */
+  readonly nonzero: Int32Array;
+  readonly nonzeroCount: Int32Array;
+  /** Per species, Σ |p_a s_aj| over the terms of the Newton step d_j. */
+  readonly stepSize: Float64Array;
   /** φ''(t) at the last point evaluated by `slope`. */
-  trialCurvature = 0;
+  trialCurvature = Number.NaN;
+  /** Relative sizes of the last species step (speciesStep). */
+  largestStep = Number.NaN;
+  majorStep = Number.NaN;
+  /** Bounds of the last step (stepBounds): first pure phase to run out, first mixture species to reach zero. */
+  tPure = Infinity;
+  blocking = -1;
+  tMix = Infinity;
+  emptying = -1;
   constructor(c: Compact) {
     this.m = c.m;
     this.rho = c.rho;
     this.mixtures = c.mixtureIndex.length;
     this.logA = new Float64Array(c.m);
-    this.trialLogA = new Float64Array(c.m);
     this.trial = new Float64Array(c.m);
     this.d = new Float64Array(c.m);
     this.dxi = new Float64Array(c.rho);
@@ -395,9 +450,219 @@ class Workspace {
     this.kappa = new Float64Array(c.rho);
     this.z = new Float64Array(c.rho * c.rho);
     this.used = new Uint8Array(c.m);
+    this.columnLargest = new Float64Array(c.m);
+    this.columnRow = new Int32Array(c.m);
     this.weighted = new Float64Array(c.rho * c.mixtureIndex.length);
     this.rootWeight = new Float64Array(c.mixtureIndex.length);
+    this.nonzero = new Int32Array(c.rho * c.mixtureIndex.length);
+    this.nonzeroCount = new Int32Array(c.rho);
+    this.stepSize = new Float64Array(c.m);
   }
+}
+
+/*
+ * The loops of one extent-Newton iteration, as separate functions: each is small and does
+ * the heavy work, so the engine optimises it after a few solves, while extentNewton itself
+ * only sequences them.
+ */
+
+/** Gradient of G in the directions: ws.gz[a] = Σ_j s_aj ln a_j − κ_a (ln a in ws.logA). */
+function reducedGradient(c: Compact, ws: Workspace, s: Float64Array, kappa: Float64Array, k: number): void {
+  const m = c.m;
+  const L = ws.logA;
+  for (let a = 0; a < k; a++) {
+    let sum = -kappa[a];
+    for (let j = 0; j < m; j++) {
+      const v = s[a * m + j];
+      if (v !== 0) sum += v * L[j];
+    }
+    ws.gz[a] = sum;
+  }
+}
+
+/**
+ * Reduced Hessian (lower triangle, into ws.h) = Σ_j s_aj s_bj / n_j over mixture species,
+ * minus the phase terms; formed from rows weighted by 1/√n_j. Also the Jacobi scaling
+ * (ws.scale) and each direction's sum over each mole-fraction group (ws.groupSums).
+ * The directions are sparse (a reaction involves few species), so each row's non-zero
+ * weighted entries are listed and a product of two rows runs over the shorter list. Exact:
+ * a skipped term is (finite)·0 = ±0, and adding ±0 to a sum that starts at +0 changes
+ * nothing (in round-to-nearest such a sum is never −0); should an entry not be finite,
+ * every term is formed as before. Returns whether every entry of the directions is finite.
+ */
+function reducedHessian(c: Compact, ws: Workspace, n: Float64Array, s: Float64Array, k: number): boolean {
+  const m = c.m;
+  const h = ws.h;
+  const gs = ws.groupSums;
+  const mix = c.mixtureIndex;
+  const mm = mix.length;
+  const sw = ws.weighted;
+  const nonzero = ws.nonzero;
+  const nonzeroCount = ws.nonzeroCount;
+  // A member of an absent phase (held at exactly 0) has a zero column in every direction: weight 0, not 1/0.
+  for (let jj = 0; jj < mm; jj++) {
+    const amount = n[mix[jj]];
+    ws.rootWeight[jj] = amount > 0 ? 1 / Math.sqrt(amount) : 0;
+  }
+  let finiteDirections = true;
+  let finiteWeighted = true;
+  for (let a = 0; a < k; a++) {
+    gs[2 * a] = 0;
+    gs[2 * a + 1] = 0;
+    let sq = 0;
+    for (let j = 0; j < m; j++) {
+      const v = s[a * m + j];
+      if (v === 0) continue;
+      if (!(Math.abs(v) < Infinity)) finiteDirections = false;
+      sq += v * v;
+      const g = c.group[j];
+      if (g >= 0) gs[2 * a + g] += v;
+    }
+    let diag = 0;
+    let count = 0;
+    for (let jj = 0; jj < mm; jj++) {
+      const v = s[a * m + mix[jj]] * ws.rootWeight[jj];
+      sw[a * mm + jj] = v;
+      diag += v * v;
+      if (v !== 0) {
+        nonzero[a * mm + count++] = jj;
+        if (!(Math.abs(v) < Infinity)) finiteWeighted = false;
+      }
+    }
+    nonzeroCount[a] = count;
+    ws.scale[a] = diag > 0 ? 1 / Math.sqrt(diag) : Math.sqrt(c.total / Math.max(sq, Number.MIN_VALUE));
+  }
+  const t0 = ws.totals[0];
+  const t1 = ws.totals[1];
+  for (let a = 0; a < k; a++) {
+    const ga0 = t0 > 0 ? gs[2 * a] / t0 : 0;
+    const ga1 = t1 > 0 ? gs[2 * a + 1] / t1 : 0;
+    for (let b = 0; b <= a; b++) {
+      let sum = 0;
+      if (finiteWeighted) {
+        const row = nonzeroCount[a] <= nonzeroCount[b] ? a : b;
+        const end = row * mm + nonzeroCount[row];
+        for (let q = row * mm; q < end; q++) {
+          const jj = nonzero[q];
+          sum += sw[a * mm + jj] * sw[b * mm + jj];
+        }
+      } else for (let jj = 0; jj < mm; jj++) sum += sw[a * mm + jj] * sw[b * mm + jj];
+      h[a * k + b] = sum - ga0 * gs[2 * b] - ga1 * gs[2 * b + 1];
+    }
+  }
+  return finiteDirections;
+}
+
+/**
+ * The species step d = Σ p_a s_a (ws.d, from the step p in ws.pz) and its relative size:
+ * ws.largestStep (growth measured against the species' own amount, shrinking against
+ * max(n, RESOLUTION·total)) and ws.majorStep (both against that floor: what is left outside
+ * trace species). A change within DIRECTION_NOISE of the terms Σ |p_a s_aj| that form it is
+ * rounding and not counted. The terms are summed in one pass over the directions; p is
+ * finite here (the decrement is), so with finite directions a term with p_a = 0 or s_aj = 0
+ * is ±0 and adds nothing; with some entry not finite the size takes every term, as its
+ * definition says.
+ */
+function speciesStep(c: Compact, ws: Workspace, n: Float64Array, s: Float64Array, k: number, finiteDirections: boolean): void {
+  const m = c.m;
+  const d = ws.d;
+  const size = ws.stepSize;
+  for (let j = 0; j < m; j++) {
+    d[j] = 0;
+    size[j] = 0;
+  }
+  for (let a = 0; a < k; a++) {
+    const pa = ws.pz[a];
+    if (pa === 0) {
+      if (!finiteDirections) for (let j = 0; j < m; j++) size[j] += Math.abs(pa * s[a * m + j]);
+      continue;
+    }
+    for (let j = 0; j < m; j++) {
+      const v = s[a * m + j];
+      if (v === 0) continue;
+      const term = pa * v;
+      d[j] += term;
+      size[j] += Math.abs(term);
+    }
+  }
+  let largestStep = 0;
+  let majorStep = 0;
+  const floor = RESOLUTION * c.total;
+  for (let j = 0; j < m; j++) {
+    const dj = d[j];
+    if (dj === 0) continue;
+    if (Math.abs(dj) <= DIRECTION_NOISE * size[j]) continue;
+    const relative = Math.abs(dj) / Math.max(n[j], floor);
+    largestStep = Math.max(largestStep, dj > 0 ? dj / n[j] : relative);
+    majorStep = Math.max(majorStep, relative);
+  }
+  ws.largestStep = largestStep;
+  ws.majorStep = majorStep;
+}
+
+/** The step in basis-reaction extents (ws.dxi = Σ p_a z_a) and its Σ p·κ, returned. */
+function extentStep(ws: Workspace, kappa: Float64Array, zb: Float64Array, k: number, rho: number): number {
+  for (let r = 0; r < rho; r++) ws.dxi[r] = 0;
+  for (let a = 0; a < k; a++) {
+    const pa = ws.pz[a];
+    if (pa !== 0) for (let r = 0; r < rho; r++) ws.dxi[r] += pa * zb[a * rho + r];
+  }
+  let pk = 0;
+  for (let a = 0; a < k; a++) pk += ws.pz[a] * kappa[a];
+  return pk;
+}
+
+/**
+ * Bounds of the step along ws.d: the first free pure phase to run out (ws.tPure, ws.blocking)
+ * and the first mixture species to reach zero among those above CLAMPABLE_AMOUNT of the
+ * total (ws.tMix, ws.emptying); Infinity and -1 when there is none.
+ */
+function stepBounds(c: Compact, ws: Workspace, n: Float64Array, held: Uint8Array): void {
+  const d = ws.d;
+  let tPure = Infinity;
+  let blocking = -1;
+  let tMix = Infinity;
+  let emptying = -1;
+  for (let j = 0; j < c.m; j++) {
+    if (d[j] >= 0 || held[j] !== FREE) continue;
+    const t = n[j] / -d[j];
+    if (c.mixture[j]) {
+      if (n[j] > CLAMPABLE_AMOUNT * c.total && t < tMix) {
+        tMix = t;
+        emptying = j;
+      }
+    } else if (t < tPure) {
+      tPure = t;
+      blocking = j;
+    }
+  }
+  ws.tPure = tPure;
+  ws.blocking = blocking;
+  ws.tMix = tMix;
+  ws.emptying = emptying;
+}
+
+/**
+ * n += t·d, keeping mixture amounts positive (a trace species clamped at AMOUNT_FLOOR of the
+ * total, or a fraction of its amount if rounding would empty it) and setting a pure phase
+ * that runs out (`emptied`, the blocking phase when the step goes exactly to it) to exactly
+ * 0. Returns whether some species changed by more than STALL_CHANGE of max(n, floor).
+ */
+function applyStep(c: Compact, n: Float64Array, d: Float64Array, t: number, emptied: number, floor: number): boolean {
+  let moved = false;
+  for (let j = 0; j < c.m; j++) {
+    const dj = d[j];
+    if (dj === 0) continue;
+    const before = n[j];
+    let after = before + t * dj;
+    if (Math.abs(after - before) > STALL_CHANGE * Math.max(before, floor)) moved = true;
+    if (c.mixture[j]) {
+      if (dj < 0 && before <= CLAMPABLE_AMOUNT * c.total) after = Math.max(after, AMOUNT_FLOOR * c.total);
+      else if (!(after > 0)) after = before * POSITIVE_FLOOR;
+    } else if (after <= 0 || j === emptied) after = 0;
+    n[j] = after;
+  }
+  return moved;
 }
 
 /**
@@ -449,84 +714,19 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       for (let a = 0; a < k; a++) kappa[a] = dirs.kappa[a];
       for (let q = 0; q < k * rho; q++) zb[q] = dirs.z[q];
       basisFor = dirs;
-      adaptBasis(c, n, s, kappa, zb, k, ws.used);
-    } else if (needsAdapting(c, n, s, k)) adaptBasis(c, n, s, kappa, zb, k, ws.used);
-    const L = ws.logA;
-    for (let a = 0; a < k; a++) {
-      let sum = -kappa[a];
-      for (let j = 0; j < m; j++) {
-        const v = s[a * m + j];
-        if (v !== 0) sum += v * L[j];
-      }
-      ws.gz[a] = sum;
-    }
-    // Reduced Hessian (lower triangle) = Σ_j s_aj s_bj / n_j over mixture species, minus the
-    // phase terms; formed from rows weighted by 1/√n_j (dense, branch-free).
-    const h = ws.h;
-    const gs = ws.groupSums;
-    const mix = c.mixtureIndex;
-    const mm = mix.length;
-    const sw = ws.weighted;
-    // A member of an absent phase (held at exactly 0) has a zero column in every direction: weight 0, not 1/0.
-    for (let jj = 0; jj < mm; jj++) {
-      const amount = n[mix[jj]];
-      ws.rootWeight[jj] = amount > 0 ? 1 / Math.sqrt(amount) : 0;
-    }
-    for (let a = 0; a < k; a++) {
-      gs[2 * a] = 0;
-      gs[2 * a + 1] = 0;
-      let sq = 0;
-      for (let j = 0; j < m; j++) {
-        const v = s[a * m + j];
-        if (v === 0) continue;
-        sq += v * v;
-        const g = c.group[j];
-        if (g >= 0) gs[2 * a + g] += v;
-      }
-      let diag = 0;
-      for (let jj = 0; jj < mm; jj++) {
-        const v = s[a * m + mix[jj]] * ws.rootWeight[jj];
-        sw[a * mm + jj] = v;
-        diag += v * v;
-      }
-      ws.scale[a] = diag > 0 ? 1 / Math.sqrt(diag) : Math.sqrt(c.total / Math.max(sq, Number.MIN_VALUE));
-    }
-    const t0 = ws.totals[0];
-    const t1 = ws.totals[1];
-    for (let a = 0; a < k; a++) {
-      const ga0 = t0 > 0 ? gs[2 * a] / t0 : 0;
-      const ga1 = t1 > 0 ? gs[2 * a + 1] / t1 : 0;
-      for (let b = 0; b <= a; b++) {
-        let sum = 0;
-        for (let jj = 0; jj < mm; jj++) sum += sw[a * mm + jj] * sw[b * mm + jj];
-        h[a * k + b] = sum - ga0 * gs[2 * b] - ga1 * gs[2 * b + 1];
-      }
-    }
+      adaptBasis(c, n, s, kappa, zb, k, ws);
+    } else if (needsAdapting(c, n, s, k)) adaptBasis(c, n, s, kappa, zb, k, ws);
+    reducedGradient(c, ws, s, kappa, k);
+    const finiteDirections = reducedHessian(c, ws, n, s, k);
     for (let a = 0; a < k; a++) ws.pz[a] = -ws.gz[a];
-    if (k > 0) modifiedCholeskySolve(h, k, ws.scale, ws.pz, MIN_PIVOT);
+    if (k > 0) modifiedCholeskySolve(ws.h, k, ws.scale, ws.pz, MIN_PIVOT);
     let decrement = 0;
     for (let a = 0; a < k; a++) decrement -= ws.gz[a] * ws.pz[a];
     if (!Number.isFinite(decrement)) return { ok: false, message: 'the Newton step is not finite', directions: dirs };
-
+    speciesStep(c, ws, n, s, k, finiteDirections);
     const d = ws.d;
-    for (let j = 0; j < m; j++) d[j] = 0;
-    for (let a = 0; a < k; a++) {
-      const pa = ws.pz[a];
-      if (pa !== 0) for (let j = 0; j < m; j++) d[j] += pa * s[a * m + j];
-    }
-    let largestStep = 0;
-    let majorStep = 0; // the same with growth too measured against the floor: what is left outside trace species
+    const { largestStep, majorStep } = ws;
     const floor = RESOLUTION * c.total;
-    for (let j = 0; j < m; j++) {
-      const dj = d[j];
-      if (dj === 0) continue;
-      let size = 0;
-      for (let a = 0; a < k; a++) size += Math.abs(ws.pz[a] * s[a * m + j]);
-      if (Math.abs(dj) <= DIRECTION_NOISE * size) continue;
-      const relative = Math.abs(dj) / Math.max(n[j], floor);
-      largestStep = Math.max(largestStep, dj > 0 ? dj / n[j] : relative);
-      majorStep = Math.max(majorStep, relative);
-    }
 
     if (largestStep <= STEP_TOLERANCE || (!strict && !(decrement > DECREMENT_TOLERANCE * c.total))) {
       const release = negativeMultiplier(c, held, ws.logA, ws.g, locked);
@@ -538,33 +738,9 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       continue;
     }
 
-    for (let r = 0; r < rho; r++) ws.dxi[r] = 0;
-    for (let a = 0; a < k; a++) {
-      const pa = ws.pz[a];
-      if (pa !== 0) for (let r = 0; r < rho; r++) ws.dxi[r] += pa * zb[a * rho + r];
-    }
-    let pk = 0;
-    for (let a = 0; a < k; a++) pk += ws.pz[a] * kappa[a];
-
-    // Bounds of the step: the first pure phase to run out, and the mixture boundary.
-    let tPure = Infinity;
-    let blocking = -1;
-    let tMix = Infinity;
-    let emptying = -1;
-    for (let j = 0; j < m; j++) {
-      if (d[j] >= 0 || held[j] !== FREE) continue;
-      const t = n[j] / -d[j];
-      if (c.mixture[j]) {
-        if (n[j] > CLAMPABLE_AMOUNT * c.total && t < tMix) {
-          tMix = t;
-          emptying = j;
-        }
-      }
-      else if (t < tPure) {
-        tPure = t;
-        blocking = j;
-      }
-    }
+    const pk = extentStep(ws, kappa, zb, k, rho);
+    stepBounds(c, ws, n, held);
+    const { tPure, blocking, tMix, emptying } = ws;
     // The full Newton step would empty a member of a phase already dwindled to its phantom
     // level: it would only creep towards zero from here (each step stops short of the
     // boundary). Whether the phase is absent is for the caller's stability test to settle.
@@ -581,19 +757,7 @@ export function extentNewton(c: Compact, st: ExtentState, released = -1, strict 
       if (!strict && decrement <= STALL_DECREMENT_TOLERANCE * c.total) return { ok: true, directions: dirs };
       return { ok: false, message: 'the line search could not make progress', directions: dirs };
     }
-    let moved = false;
-    for (let j = 0; j < m; j++) {
-      const dj = d[j];
-      if (dj === 0) continue;
-      const before = n[j];
-      let after = before + t * dj;
-      if (Math.abs(after - before) > STALL_CHANGE * Math.max(before, floor)) moved = true;
-      if (c.mixture[j]) {
-        if (dj < 0 && before <= CLAMPABLE_AMOUNT * c.total) after = Math.max(after, AMOUNT_FLOOR * c.total);
-        else if (!(after > 0)) after = before * POSITIVE_FLOOR;
-      } else if (after <= 0 || (j === blocking && t === tPure)) after = 0;
-      n[j] = after;
-    }
+    const moved = applyStep(c, n, d, t, t === tPure ? blocking : -1, floor);
     for (let r = 0; r < rho; r++) xi[r] += t * ws.dxi[r];
     let changed = false;
     for (let j = 0; j < m; j++) {
@@ -731,12 +895,19 @@ function lineSearch(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array,
   return lo;
 }
 
-/** φ'(t) at n + t·d (NaN if a mixture amount would fall below AMOUNT_FLOOR of the total, unless it is clamped there); leaves φ''(t) in ws.trialCurvature. */
+/**
+ * φ'(t) at n + t·d (NaN if a mixture amount would fall below AMOUNT_FLOOR of the total, unless
+ * it is clamped there); leaves φ''(t) in ws.trialCurvature. The group totals and ln a are
+ * formed as groupTotals and logActivities would (same terms, same order), but in the same
+ * passes, and ln a only for the species the direction moves (the only ones φ' needs).
+ */
 function slope(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array, pk: number, t: number): number {
   const m = c.m;
   const x = ws.trial;
   const floor = AMOUNT_FLOOR * c.total;
   const clampable = CLAMPABLE_AMOUNT * c.total;
+  let total0 = c.groupInert[0];
+  let total1 = c.groupInert[1];
   for (let j = 0; j < m; j++) {
     let v = n[j] + t * d[j];
     if (c.mixture[j] && d[j] < 0 && !(v >= floor)) {
@@ -744,9 +915,12 @@ function slope(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array, pk: 
       else return Number.NaN;
     }
     x[j] = v;
+    const g = c.group[j];
+    if (g === 0) total0 += v;
+    else if (g === 1) total1 += v;
   }
-  groupTotals(c, x, ws.trialTotals);
-  logActivities(c, x, ws.trialTotals, ws.trialLogA);
+  const lg0 = c.hasGasGroup ? Math.log(total0) : 0;
+  const lg1 = c.hasLiquidGroup ? Math.log(total1) : 0;
   let value = -pk;
   let curvature = 0;
   let dg0 = 0;
@@ -754,14 +928,18 @@ function slope(c: Compact, ws: Workspace, n: Float64Array, d: Float64Array, pk: 
   for (let j = 0; j < m; j++) {
     const dj = d[j];
     if (dj === 0) continue;
-    value += dj * ws.trialLogA[j];
-    if (!c.mixture[j]) continue;
+    if (!c.mixture[j]) {
+      value += dj * c.offset[j];
+      continue;
+    }
+    const g = c.group[j];
+    value += dj * (Math.log(x[j]) + c.offset[j] - (g === 0 ? lg0 : g === 1 ? lg1 : 0));
     curvature += (dj * dj) / x[j];
-    if (c.group[j] === 0) dg0 += dj;
-    else if (c.group[j] === 1) dg1 += dj;
+    if (g === 0) dg0 += dj;
+    else if (g === 1) dg1 += dj;
   }
-  if (ws.trialTotals[0] > 0) curvature -= (dg0 * dg0) / ws.trialTotals[0];
-  if (ws.trialTotals[1] > 0) curvature -= (dg1 * dg1) / ws.trialTotals[1];
+  if (total0 > 0) curvature -= (dg0 * dg0) / total0;
+  if (total1 > 0) curvature -= (dg1 * dg1) / total1;
   ws.trialCurvature = curvature;
   return value;
 }

@@ -102,6 +102,9 @@ class PolishWorkspace {
   /** The conservation laws as rewritten by conservationRows (laws × m). */
   readonly laws: Float64Array;
   readonly lawPivotUsed: Uint8Array;
+  /** conservationRows: each column's largest entry among the remaining laws, and its first law. */
+  readonly columnLargest: Float64Array;
+  readonly columnRow: Int32Array;
   readonly rowScale: Float64Array;
   readonly x: Float64Array;
   readonly amounts: Float64Array;
@@ -122,6 +125,8 @@ class PolishWorkspace {
     this.unknown = new Int32Array(m);
     this.laws = new Float64Array(m * m);
     this.lawPivotUsed = new Uint8Array(m);
+    this.columnLargest = new Float64Array(m);
+    this.columnRow = new Int32Array(m);
     this.rowScale = new Float64Array(m);
     this.x = new Float64Array(m);
     this.amounts = new Float64Array(m);
@@ -139,6 +144,37 @@ function polishFailure(message: string, iterations: number): PolishOnce {
   return { ok: false, message, iterations, negative: -1 };
 }
 
+/**
+ * The Jacobian of the polish equations (q × q, into ws.jac) at the point whose amounts and
+ * group totals are in ws.amounts and ws.totals: mass-action rows over ln n (the mole-fraction
+ * term 1 − n_j/N_phase folded in through the directions' group sums), then the `count`
+ * conservation rows c_j·n_j (c_j for a pure phase) over their row scales.
+ */
+function polishJacobian(c: Compact, ws: PolishWorkspace, dirs: Directions, q: number, count: number): void {
+  const { m } = c;
+  const k = dirs.k;
+  const { unknown, amounts, totals, groupSums, laws, rowScale, jac } = ws;
+  for (let a = 0; a < k; a++) {
+    for (let u = 0; u < q; u++) {
+      const j = unknown[u];
+      let v = 0;
+      if (c.mixture[j]) {
+        v = dirs.s[a * m + j];
+        const g = c.group[j];
+        if (g >= 0) v -= (groupSums[2 * a + g] * amounts[j]) / totals[g];
+      }
+      jac[a * q + u] = v;
+    }
+  }
+  for (let l = 0; l < count; l++) {
+    for (let u = 0; u < q; u++) {
+      const j = unknown[u];
+      const cl = laws[l * m + j];
+      jac[(k + l) * q + u] = c.mixture[j] ? (cl * amounts[j]) / rowScale[l] : cl / rowScale[l];
+    }
+  }
+}
+
 function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   const { m } = c;
   const n = st.n;
@@ -148,10 +184,9 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   let q = 0;
   for (let j = 0; j < m; j++) if (held[j] === FREE) unknown[q++] = j;
   const k = dirs.k;
-  const fail = polishFailure;
 
   const count = conservationRows(c, held, n, ws);
-  if (count + k !== q) return fail('the conservation laws and the reduced reactions do not determine the present species', 0);
+  if (count + k !== q) return polishFailure('the conservation laws and the reduced reactions do not determine the present species', 0);
   const invariants = ws.laws;
   const rowScale = ws.rowScale;
   for (let l = 0; l < count; l++) {
@@ -163,7 +198,7 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   for (let u = 0; u < q; u++) {
     const j = unknown[u];
     x[u] = c.mixture[j] ? Math.log(n[j]) : n[j];
-    if (c.mixture[j] && !Number.isFinite(x[u])) return fail('a mixture species has no positive amount to start the polish from', 0);
+    if (c.mixture[j] && !Number.isFinite(x[u])) return polishFailure('a mixture species has no positive amount to start the polish from', 0);
   }
   const amounts = ws.amounts;
   for (let j = 0; j < m; j++) amounts[j] = held[j] !== FREE ? 0 : n[j];
@@ -193,8 +228,8 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
     }
     groupTotals(c, amounts, totals);
     // ln a from ln n directly, so an amount too small for a double still has an exact ln a.
-    const lg0 = Math.log(totals[0]);
-    const lg1 = Math.log(totals[1]);
+    const lg0 = c.hasGasGroup ? Math.log(totals[0]) : 0;
+    const lg1 = c.hasLiquidGroup ? Math.log(totals[1]) : 0;
     for (let u = 0; u < q; u++) {
       const j = unknown[u];
       if (!c.mixture[j]) continue;
@@ -220,37 +255,18 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
   };
 
   let merit = evaluate(x);
-  if (Number.isNaN(merit)) return fail('the polish started from a non-finite point', 0);
+  if (Number.isNaN(merit)) return polishFailure('the polish started from a non-finite point', 0);
   let iterations = 0;
   let converged = false;
   while (iterations < POLISH_MAX_ITERATIONS) {
     iterations++;
-    // Jacobian at the current point (amounts/totals hold its values).
-    for (let a = 0; a < k; a++) {
-      for (let u = 0; u < q; u++) {
-        const j = unknown[u];
-        let v = 0;
-        if (c.mixture[j]) {
-          v = dirs.s[a * m + j];
-          const g = c.group[j];
-          if (g >= 0) v -= (groupSums[2 * a + g] * amounts[j]) / totals[g];
-        }
-        jac[a * q + u] = v;
-      }
-    }
-    for (let l = 0; l < count; l++) {
-      for (let u = 0; u < q; u++) {
-        const j = unknown[u];
-        const cl = invariants[l * m + j];
-        jac[(k + l) * q + u] = c.mixture[j] ? (cl * amounts[j]) / rowScale[l] : cl / rowScale[l];
-      }
-    }
+    polishJacobian(c, ws, dirs, q, count);
     for (let i = 0; i < q; i++) step[i] = -residual[i];
-    if (!luFactor(jac, q, perm)) return fail('the polish Jacobian is singular', iterations);
+    if (!luFactor(jac, q, perm)) return polishFailure('the polish Jacobian is singular', iterations);
     luSolve(jac, q, perm, step);
     let t = 1;
     for (let u = 0; u < q; u++) {
-      if (!Number.isFinite(step[u])) return fail('the polish step is not finite', iterations);
+      if (!Number.isFinite(step[u])) return polishFailure('the polish step is not finite', iterations);
       if (c.mixture[unknown[u]] && x[u] + step[u] > MAX_LOG_AMOUNT) t = Math.min(t, (MAX_LOG_AMOUNT - x[u]) / step[u]);
     }
     let accepted = false;
@@ -282,7 +298,7 @@ function polishOnce(c: Compact, st: ExtentState, dirs: Directions): PolishOnce {
       break;
     }
   }
-  if (!converged) return fail('the log-amount polish did not converge', iterations);
+  if (!converged) return polishFailure('the log-amount polish did not converge', iterations);
   evaluate(x);
   for (let u = 0; u < q; u++) {
     const j = unknown[u];
@@ -335,23 +351,34 @@ function conservationRows(c: Compact, held: Uint8Array, n: Float64Array, ws: Pol
   const used = ws.lawPivotUsed;
   for (let j = 0; j < m; j++) used[j] = 0;
   let rank = 0;
+  const { columnLargest, columnRow } = ws;
   for (; rank < total; rank++) {
+    // One pass over the remaining laws: the largest entry on the free species, and each
+    // column's largest entry with its first law: the values the two separate scans would
+    // give (Math.max keeps a NaN, which stops the rewrite; `>` skips it).
     let largest = 0;
-    for (let l = rank; l < total; l++) for (let j = 0; j < m; j++) if (held[j] === FREE) largest = Math.max(largest, Math.abs(rows[l * m + j]));
+    for (let j = 0; j < m; j++) {
+      columnLargest[j] = 0;
+      columnRow[j] = -1;
+    }
+    for (let l = rank; l < total; l++) {
+      for (let j = 0; j < m; j++) {
+        if (held[j] !== FREE) continue;
+        const v = Math.abs(rows[l * m + j]);
+        largest = Math.max(largest, v);
+        if (v > columnLargest[j]) {
+          columnLargest[j] = v;
+          columnRow[j] = l;
+        }
+      }
+    }
     if (!(largest > RANK_TOLERANCE)) break;
     let col = -1;
     let row = -1;
     for (let j = 0; j < m; j++) {
       if (held[j] !== FREE || used[j]) continue;
-      let r = -1;
-      let big = 0;
-      for (let l = rank; l < total; l++) {
-        const v = Math.abs(rows[l * m + j]);
-        if (v > big) {
-          big = v;
-          r = l;
-        }
-      }
+      const r = columnRow[j];
+      const big = columnLargest[j];
       if (big < LAW_PIVOT_RATIO * largest) continue;
       if (col < 0 || n[j] > n[col]) {
         col = j;

@@ -232,30 +232,8 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
   }
 
   // Which reactions can run, and which species can ever form (fixed point from what is present).
-  const formable = arrays.formable;
-  const runForward = arrays.runForward;
-  const runBackward = arrays.runBackward;
-  for (let i = 0; i < S; i++) formable[i] = n0[i] > 0 ? 1 : 0;
-  for (let r = 0; r < R; r++) {
-    runForward[r] = 0;
-    runBackward[r] = 0;
-  }
-  const kicks: number[] = [];
-  for (let changed = true; changed; ) {
-    changed = false;
-    for (let r = 0; r < R; r++) {
-      for (let dir = 1; dir >= -1; dir -= 2) {
-        if ((dir === 1 ? runForward : runBackward)[r]) continue;
-        let ok = true;
-        for (let i = 0; i < S && ok; i++) if (nu[r * S + i] * dir < 0 && !formable[i]) ok = false;
-        if (!ok) continue;
-        (dir === 1 ? runForward : runBackward)[r] = 1;
-        if (!runForward[r] || !runBackward[r]) kicks.push(r, dir);
-        for (let i = 0; i < S; i++) if (nu[r * S + i] * dir > 0) formable[i] = 1;
-        changed = true;
-      }
-    }
-  }
+  const { formable, runForward, runBackward } = arrays;
+  const kicks = runnableReactions(nu, n0, S, R, formable, runForward, runBackward);
   const active = arrays.active;
   const inactive: number[] = [];
   for (let r = 0; r < R; r++) {
@@ -363,6 +341,46 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
 }
 
 /**
+ * The fixed point of formability: from the species present (n0 > 0), a reaction can run
+ * forward once all its reactants can exist and backward once all its products can, and then
+ * its products (reactants) can exist. Fills `formable`, `runForward`, `runBackward` and
+ * returns flat pairs (reaction, direction ±1): each reaction that can run, once, with the
+ * first direction it could run in, in the order they became able to run.
+ */
+function runnableReactions(
+  nu: Float64Array,
+  n0: Float64Array,
+  S: number,
+  R: number,
+  formable: Uint8Array,
+  runForward: Uint8Array,
+  runBackward: Uint8Array,
+): number[] {
+  for (let i = 0; i < S; i++) formable[i] = n0[i] > 0 ? 1 : 0;
+  for (let r = 0; r < R; r++) {
+    runForward[r] = 0;
+    runBackward[r] = 0;
+  }
+  const kicks: number[] = [];
+  for (let changed = true; changed; ) {
+    changed = false;
+    for (let r = 0; r < R; r++) {
+      for (let dir = 1; dir >= -1; dir -= 2) {
+        if ((dir === 1 ? runForward : runBackward)[r]) continue;
+        let ok = true;
+        for (let i = 0; i < S && ok; i++) if (nu[r * S + i] * dir < 0 && !formable[i]) ok = false;
+        if (!ok) continue;
+        (dir === 1 ? runForward : runBackward)[r] = 1;
+        if (!runForward[r] || !runBackward[r]) kicks.push(r, dir);
+        for (let i = 0; i < S; i++) if (nu[r * S + i] * dir > 0) formable[i] = 1;
+        changed = true;
+      }
+    }
+  }
+  return kicks;
+}
+
+/**
  * The message for a dependent reaction whose ln K disagrees with the same combination of
  * the independent ones' (beyond DEPENDENT_LNK_TOLERANCE plus rounding), or undefined.
  */
@@ -413,9 +431,9 @@ function groupOf(phase: SolverPhase, kind: 'constant-pressure' | 'constant-volum
 
 interface Dependence {
   /** Independent rows, in input order. */
-  readonly basis: number[];
+  readonly basis: readonly number[];
   /** Each dependent row with its coefficients on `basis` (row ≈ Σ c_k basis_k). */
-  readonly dependent: { readonly row: number; readonly coefficients: Float64Array }[];
+  readonly dependent: readonly { readonly row: number; readonly coefficients: Float64Array }[];
 }
 
 /**
@@ -427,48 +445,58 @@ interface Dependence {
 function independentRows(nu: Float64Array, S: number, rows: readonly number[]): Dependence {
   if (rows.length === 1) return { basis: [rows[0]], dependent: [] }; // a reaction with a non-zero coefficient is independent
   const kept: number[] = [];
-  const reduced: Float64Array[] = []; // echelon rows
   const pivot: number[] = [];
-  const combos: Float64Array[] = []; // echelon row = Σ combo_k · original(kept_k), over rows.length
   const dependent: { row: number; coefficients: Float64Array }[] = [];
   const count = rows.length;
   if (count === 0) return { basis: [], dependent };
+  // Row e of `reduced` (S wide) is the e-th echelon row, and row e of `combos` (count wide)
+  // its combination of the kept originals; the row after the last kept one is the work row.
+  if (eliminationRows.length < count * S) eliminationRows = new Float64Array(count * S);
+  if (eliminationCombos.length < count * count) eliminationCombos = new Float64Array(count * count);
+  const reduced = eliminationRows;
+  const combos = eliminationCombos;
   for (let t = 0; t < count; t++) {
     const r = rows[t];
-    const v = nu.slice(r * S, r * S + S);
+    const at = kept.length;
+    const v = at * S; // v = original(r) - Σ combo·(kept originals)
+    const combo = at * count;
     let scale = 0;
-    for (let i = 0; i < S; i++) scale = Math.max(scale, Math.abs(v[i]));
-    const combo = new Float64Array(count); // v = original(r) - Σ combo·(kept originals)
-    for (let e = 0; e < reduced.length; e++) {
+    for (let i = 0; i < S; i++) {
+      reduced[v + i] = nu[r * S + i];
+      scale = Math.max(scale, Math.abs(reduced[v + i]));
+    }
+    for (let k = 0; k < count; k++) combos[combo + k] = 0;
+    for (let e = 0; e < at; e++) {
       const p = pivot[e];
-      const f = v[p] / reduced[e][p];
+      const f = reduced[v + p] / reduced[e * S + p];
       if (f === 0) continue;
-      for (let i = 0; i < S; i++) v[i] -= f * reduced[e][i];
-      v[p] = 0;
-      for (let k = 0; k < count; k++) combo[k] += f * combos[e][k];
+      for (let i = 0; i < S; i++) reduced[v + i] -= f * reduced[e * S + i];
+      reduced[v + p] = 0;
+      for (let k = 0; k < count; k++) combos[combo + k] += f * combos[e * count + k];
     }
     let best = -1;
     let max = DEPENDENCE_TOLERANCE * scale;
     for (let i = 0; i < S; i++) {
-      if (Math.abs(v[i]) > max) {
-        max = Math.abs(v[i]);
+      if (Math.abs(reduced[v + i]) > max) {
+        max = Math.abs(reduced[v + i]);
         best = i;
       }
     }
     if (best < 0) {
       // original(r) ≈ Σ combo_k · original(kept_k); padded to the final basis size below.
-      dependent.push({ row: r, coefficients: combo });
+      dependent.push({ row: r, coefficients: combos.slice(combo, combo + count) });
     } else {
-      const own = new Float64Array(count);
-      for (let k = 0; k < count; k++) own[k] = -combo[k];
-      own[kept.length] = 1;
+      for (let k = 0; k < count; k++) combos[combo + k] = -combos[combo + k];
+      combos[combo + at] = 1;
       kept.push(r);
-      reduced.push(v);
       pivot.push(best);
-      combos.push(own);
     }
   }
   // Coefficients on the basis as finally kept (rows kept after a dependent one get 0).
   for (const dep of dependent) dep.coefficients = dep.coefficients.slice(0, kept.length);
   return { basis: kept, dependent };
 }
+
+/** Work space of independentRows (echelon rows, their combinations), grown as needed; nothing in it outlives a call. */
+let eliminationRows = new Float64Array(0);
+let eliminationCombos = new Float64Array(0);
