@@ -81,11 +81,16 @@ export function randomNetwork(rng: Random, o: NetworkOptions): Network {
   return { problem: { species, reactions, conditions, liquidVolume: 1e-3 + 1e-2 * rng.next() }, composition };
 }
 
-/** Largest element-balance violation, relative to the total initial amount. */
+/**
+ * Largest element-balance violation, relative to the total initial amount. A network that
+ * starts with nothing at all (total 0, which randomNetwork can draw) is measured in mol
+ * instead: dividing by the zero total would give 0/0 = NaN even for the exact answer.
+ */
 export function elementViolation(network: Network, n: readonly number[]): number {
   const { problem, composition } = network;
   let total = 0;
   for (const s of problem.species) total += s.n0;
+  if (!(total > 0)) total = 1;
   let worst = 0;
   for (let e = 0; e < composition[0].length; e++) {
     let before = 0;

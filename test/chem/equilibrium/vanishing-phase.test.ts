@@ -246,3 +246,75 @@ describe('random gas–solid networks at constant pressure, where the gas phase 
     expect(vanished).toBeGreaterThan(0); // the family does exercise a vanishing gas phase
   });
 });
+
+describe('regressions found by the random gas–solid property test with other seeds', () => {
+  // Seed 1011, network 61 (printed from the generator; X1 takes part in no reaction).
+  // R1: X2(s) + X3 + X5 → X6(s), R2: X2(s) + X4 + X6(s) → X3 + 2 X5, with X5 and X6 absent at
+  // the start: neither reaction can start alone, but 3·R1 + 2·R2 (5 X2 + X3 + 2 X4 → X5 + X6)
+  // can, so the earlier solver returned n0 unchanged from n0 and a different answer from a
+  // shifted start. Checked (worked by hand from the optimality conditions, G being convex):
+  // the gas X5 must be present (its −ln n makes G fall along that combination); X2 is used up
+  // with R1 on the forward side (Q < K); the X2-free combination R1 − R2
+  // (X4 + 3 X5 ⇌ 2 X3 + 2 X6) obeys mass action; both starts give the same amounts.
+  const composition = [
+    [1, 0, 0, 0],
+    [0, 1, 0, 0],
+    [0, 0, 1, 0],
+    [0, 0, 0, 1],
+    [0, 2, 0, 1],
+    [0, 3, 1, 1],
+  ];
+  const seed1011 = (n0: readonly number[]): EquilibriumProblem => ({
+    species: ['g', 's', 'g', 'g', 'g', 's'].map((phase, i) => ({ id: `X${i + 1}`, phase: phase as 'g' | 's', n0: n0[i] })),
+    reactions: [
+      { label: 'R1', nu: [0, -1, -1, 0, -1, 1], lnK: 5.784152513369918 }, // random (seed 1011)
+      { label: 'R2', nu: [0, -1, 1, -1, 2, -1], lnK: -5.538827744312584 }, // random (seed 1011)
+    ],
+    conditions: { kind: 'constant-pressure', T: 743.0343515006825, P: 205182.0522081107 },
+    liquidVolume: 0.0048478188100270925,
+  });
+  const start = [1.6540814467705787, 1.8982633377425373, 0.8940247238613666, 1.7582451791502536, 0, 0];
+  // n0 + t·ν·ξ for the generator's random ξ (conservation-equivalent, property).
+  const shiftedStart = [1.6540814467705787, 0.9491316688712687, 0.7565537309729861, 1.3524148411588095, 0.26835934510306353, 0.13747099288838052];
+
+  it('seed 1011: a combination of reactions forms X5 and X6; n0 and a shifted start agree', () => {
+    const problem = seed1011(start);
+    const r = solveEquilibrium(problem);
+    expectSound(problem, r);
+    expect(elementViolation({ problem, composition }, r.n)).toBeLessThanOrEqual(1e-12); // conservation (property)
+    expect(r.n[4]).toBeGreaterThan(0); // X5 forms (worked by hand above)
+    expect(r.n[5]).toBeGreaterThan(0); // X6 forms (worked by hand above)
+    expect(r.n[1]).toBe(0); // X2 used up (worked by hand above)
+    expect(r.n[0]).toBe(start[0]); // X1 takes part in no reaction
+    expect(r.lnQ[0]).toBeLessThan(5.784152513369918); // R1: Q < K with X2 used up (worked by hand above)
+    expect(Math.abs(r.lnQ[0] - r.lnQ[1] - (5.784152513369918 - -5.538827744312584))).toBeLessThan(MASS_ACTION); // R1 − R2 (worked by hand above)
+    const shifted = seed1011(shiftedStart);
+    const again = solveEquilibrium(shifted);
+    expectSound(shifted, again);
+    const total = start.reduce((sum, x) => sum + x, 0);
+    r.n.forEach((x, i) => expect(Math.abs(x - again.n[i])).toBeLessThanOrEqual(1e-9 * Math.max(x, again.n[i]) + 1e-13 * total)); // uniqueness (property)
+  });
+
+  // Seed 1022, network 2: every initial amount is 0. The answer (all zero) was right; the
+  // property test's elementViolation divided by the zero total (0/0 = NaN), a test artifact
+  // now measured in mol (helpers.ts). Checked: converged, nothing formed, no NaN anywhere.
+  it('seed 1022: a network that starts with nothing stays at nothing', () => {
+    const problem: EquilibriumProblem = {
+      species: ['s', 'g', 'g', 's', 's', 'g', 's'].map((phase, i) => ({ id: `X${i + 1}`, phase: phase as 'g' | 's', n0: 0 })),
+      reactions: [
+        { label: 'R1', nu: [1, -1, 1, -2, 1, 0, 0], lnK: 10.746999443508685 }, // random (seed 1022)
+        { label: 'R2', nu: [0, 0, 0, -3, 0, 0, 1], lnK: 8.896770752035081 }, // random (seed 1022)
+        { label: 'R3', nu: [-1, 0, -1, 1, 0, 0, 0], lnK: -4.759783279150724 }, // random (seed 1022)
+        { label: 'R4', nu: [-2, -1, 1, 0, 0, 0, 0], lnK: 8.192874970845878 }, // random (seed 1022)
+      ],
+      conditions: { kind: 'constant-pressure', T: 694.0149770351127, P: 281187.7890396863 },
+      liquidVolume: 0.009000423258636148,
+    };
+    const network = { problem, composition: [[1, 0], [0, 1], [2, 1], [3, 1], [3, 2], [0, 2], [9, 3]] };
+    const r = solveEquilibrium(problem);
+    expectSound(problem, r);
+    expect(r.n).toEqual([0, 0, 0, 0, 0, 0, 0]); // nothing to react (conservation with a zero start)
+    expect(elementViolation(network, r.n)).toBe(0); // no longer NaN (helpers.ts)
+    expect(r.gasMoles).toBe(0);
+  });
+});

@@ -159,6 +159,10 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
   for (let q = 0; q < p.kicks.length; q += 2) {
     const r = p.kicks[q];
     const dir = p.kicks[q + 1];
+    if (dir === 0) {
+      kickCombination(c, p, p.combinations[r], n, xi, position);
+      continue;
+    }
     let limit = Infinity;
     for (let i = 0; i < S; i++) {
       const v = p.nu[r * S + i] * dir;
@@ -174,6 +178,29 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
   }
   for (let j = 0; j < c.m; j++) if (n[j] < 0) n[j] = 0;
   return { n, xi, held, absent, iterations: 0, iterationBase: 0 };
+}
+
+/**
+ * Runs the reaction combination `extents` (one per reaction; see Prepared.combinations)
+ * KICK_FRACTION of the way to the limit set by n >= 0, like a single-reaction kick: the
+ * species it forms (none of which any single reaction could start) become positive.
+ */
+function kickCombination(c: Compact, p: Prepared, extents: Float64Array, n: Float64Array, xi: Float64Array, position: Int32Array): void {
+  const S = p.speciesCount;
+  const change = new Float64Array(S);
+  for (let r = 0; r < p.reactionCount; r++) {
+    const x = extents[r];
+    if (x !== 0) for (let i = 0; i < S; i++) change[i] += p.nu[r * S + i] * x;
+  }
+  let limit = Infinity;
+  for (let i = 0; i < S; i++) if (change[i] < 0 && position[i] >= 0) limit = Math.min(limit, n[position[i]] / -change[i]);
+  if (!(limit > 0) || !Number.isFinite(limit)) return;
+  const eps = KICK_FRACTION * limit;
+  for (let i = 0; i < S; i++) if (change[i] !== 0 && position[i] >= 0) n[position[i]] += change[i] * eps;
+  for (let r = 0; r < p.reactionCount; r++) {
+    const x = extents[r];
+    if (x !== 0) for (let k = 0; k < c.rho; k++) xi[k] += p.basisCoefficients[r * c.rho + k] * x * eps;
+  }
 }
 
 /**

@@ -9,6 +9,7 @@ import {
   type EquilibriumProblem,
   type SolverPhase,
 } from './types';
+import { formingCombination } from './combinations';
 
 /** Activity model: constant activity while present (solid, solvent, sole member of a mole-fraction phase). */
 export const PURE = 0;
@@ -59,8 +60,13 @@ export interface Prepared {
   readonly basis: Int32Array;
   /** Each active reaction as a combination of the basis: reactions × basis, row-major. */
   readonly basisCoefficients: Float64Array;
-  /** Flat pairs (reaction, direction ±1) in the order the reactions became able to run. */
+  /**
+   * Flat pairs (reaction, direction ±1) in the order the reactions became able to run; a pair
+   * (q, 0) stands for the reaction combination `combinations[q]` (see runnableReactions).
+   */
   readonly kicks: readonly number[];
+  /** Extents (length R each) of the reaction combinations that form species no single reaction can start. */
+  readonly combinations: readonly Float64Array[];
   /** Species touched by the active reactions, ascending. */
   readonly variable: Int32Array;
   /** 1 for each species in `variable`. */
@@ -233,7 +239,8 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
 
   // Which reactions can run, and which species can ever form (fixed point from what is present).
   const { formable, runForward, runBackward } = arrays;
-  const kicks = runnableReactions(nu, n0, S, R, formable, runForward, runBackward);
+  const runnable = runnableReactions(nu, n0, S, R, formable, runForward, runBackward);
+  const { kicks, combinations } = runnable;
   const active = arrays.active;
   const inactive: number[] = [];
   for (let r = 0; r < R; r++) {
@@ -333,11 +340,18 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
       basis,
       basisCoefficients,
       kicks,
+      combinations,
       variable,
       touched,
       totalAmount,
     },
   };
+}
+
+/** What the formability analysis found: the kicks and the combinations they refer to. */
+interface Runnable {
+  readonly kicks: number[];
+  readonly combinations: Float64Array[];
 }
 
 /**
@@ -346,6 +360,16 @@ export function prepare(problem: EquilibriumProblem): PrepareOutcome {
  * its products (reactants) can exist. Fills `formable`, `runForward`, `runBackward` and
  * returns flat pairs (reaction, direction ±1): each reaction that can run, once, with the
  * first direction it could run in, in the order they became able to run.
+ * A species can also be formable when no single reaction can start it but a combination
+ * can: with A + X → Y and B + Y → 2 X and X, Y absent, 3 of the first and 2 of the second
+ * give 3 A + 2 B → X + Y, a feasible change of a closed system. Equilibrium is the minimum of G over all of
+ * n0 + ν·ξ >= 0, so such species must form too (their −ln n makes G fall). After each fixed
+ * point, formingCombination (combinations.ts) looks for the largest set of such species; its
+ * reactions become active, it is recorded as a kick pair (index into `combinations`, 0), and
+ * the fixed point goes on. A combination that also involves a species it does not form (that
+ * species stays exactly zero, e.g. an intermediate made and used in step) is NOT handled:
+ * its reactions would touch a species forced to zero, which the extent model cannot
+ * represent, so formability then stays as the fixed point left it (a known limitation).
  */
 function runnableReactions(
   nu: Float64Array,
@@ -355,29 +379,54 @@ function runnableReactions(
   formable: Uint8Array,
   runForward: Uint8Array,
   runBackward: Uint8Array,
-): number[] {
+): Runnable {
   for (let i = 0; i < S; i++) formable[i] = n0[i] > 0 ? 1 : 0;
   for (let r = 0; r < R; r++) {
     runForward[r] = 0;
     runBackward[r] = 0;
   }
   const kicks: number[] = [];
-  for (let changed = true; changed; ) {
-    changed = false;
-    for (let r = 0; r < R; r++) {
-      for (let dir = 1; dir >= -1; dir -= 2) {
-        if ((dir === 1 ? runForward : runBackward)[r]) continue;
-        let ok = true;
-        for (let i = 0; i < S && ok; i++) if (nu[r * S + i] * dir < 0 && !formable[i]) ok = false;
-        if (!ok) continue;
-        (dir === 1 ? runForward : runBackward)[r] = 1;
-        if (!runForward[r] || !runBackward[r]) kicks.push(r, dir);
-        for (let i = 0; i < S; i++) if (nu[r * S + i] * dir > 0) formable[i] = 1;
-        changed = true;
+  const combinations: Float64Array[] = [];
+  for (let round = 0; round <= S; round++) {
+    for (let changed = true; changed; ) {
+      changed = false;
+      for (let r = 0; r < R; r++) {
+        for (let dir = 1; dir >= -1; dir -= 2) {
+          if ((dir === 1 ? runForward : runBackward)[r]) continue;
+          let ok = true;
+          for (let i = 0; i < S && ok; i++) if (nu[r * S + i] * dir < 0 && !formable[i]) ok = false;
+          if (!ok) continue;
+          (dir === 1 ? runForward : runBackward)[r] = 1;
+          if (!runForward[r] || !runBackward[r]) kicks.push(r, dir);
+          for (let i = 0; i < S; i++) if (nu[r * S + i] * dir > 0) formable[i] = 1;
+          changed = true;
+        }
       }
     }
+    const zero: number[] = [];
+    for (let i = 0; i < S; i++) if (!formable[i]) zero.push(i);
+    const combination = formingCombination(nu, S, R, zero);
+    if (!combination) break;
+    // Supported only when every species of the combination's reactions can then exist; else
+    // (it also involves a species that stays zero) formability stays as the fixed point left it.
+    const next = formable.slice();
+    for (const i of combination.formed) next[i] = 1;
+    let supported = true;
+    for (let r = 0; r < R && supported; r++) {
+      if (combination.extents[r] === 0) continue;
+      for (let i = 0; i < S; i++) if (nu[r * S + i] !== 0 && !next[i]) supported = false;
+    }
+    if (!supported) break;
+    formable.set(next);
+    for (let r = 0; r < R; r++) {
+      const x = combination.extents[r];
+      if (x > 0) runForward[r] = 1;
+      else if (x < 0) runBackward[r] = 1;
+    }
+    kicks.push(combinations.length, 0);
+    combinations.push(combination.extents);
   }
-  return kicks;
+  return { kicks, combinations };
 }
 
 /**
