@@ -6,6 +6,15 @@
 /** Dekker/Veltkamp splitting constant 2^27 + 1: splits a double into two 26-bit halves. */
 const SPLITTER = 134217729;
 
+/** Swaps rows x and y of a row-major matrix `width` entries wide, in place. */
+export function swapRows(a: Float64Array, width: number, x: number, y: number): void {
+  for (let j = 0; j < width; j++) {
+    const t = a[x * width + j];
+    a[x * width + j] = a[y * width + j];
+    a[y * width + j] = t;
+  }
+}
+
 /**
  * LU factorisation with partial pivoting, in place (Doolittle, unit lower triangle stored
  * below the diagonal). `perm[k]` is the row swapped with row k at step k. Returns false
@@ -24,13 +33,7 @@ export function luFactor(a: Float64Array, n: number, perm: Int32Array): boolean 
     }
     if (!(max > 0) || !Number.isFinite(max)) return false;
     perm[k] = p;
-    if (p !== k) {
-      for (let j = 0; j < n; j++) {
-        const t = a[k * n + j];
-        a[k * n + j] = a[p * n + j];
-        a[p * n + j] = t;
-      }
-    }
+    if (p !== k) swapRows(a, n, k, p);
     const inv = 1 / a[k * n + k];
     for (let i = k + 1; i < n; i++) {
       const f = a[i * n + k] * inv;
@@ -161,13 +164,7 @@ export function reducedRowEchelon(a: ArrayLike<number>, rows: number, cols: numb
       }
     }
     if (bi < 0) break;
-    if (bi !== rank) {
-      for (let j = 0; j < cols; j++) {
-        const t = m[rank * cols + j];
-        m[rank * cols + j] = m[bi * cols + j];
-        m[bi * cols + j] = t;
-      }
-    }
+    if (bi !== rank) swapRows(m, cols, rank, bi);
     const inv = 1 / m[rank * cols + bj];
     for (let j = 0; j < cols; j++) m[rank * cols + j] *= inv;
     m[rank * cols + bj] = 1;

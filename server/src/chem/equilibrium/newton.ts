@@ -3,7 +3,7 @@
 // on the directional derivative and an active set for pure phases (solids,
 // solvent) that run out or never form.
 import { groupTotals, logActivities, type Compact } from './compact';
-import { luFactor, luSolve, modifiedCholeskySolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
+import { luFactor, luSolve, modifiedCholeskySolve, nullSpaceBasis, reducedRowEchelon, swapRows } from './linalg';
 import type { Prepared } from './problem';
 
 /** Each reaction that first makes a species formable is run this fraction of the way to its limit, for a strictly interior start. */
@@ -365,14 +365,6 @@ function needsAdapting(c: Compact, n: Float64Array, s: Float64Array, k: number):
     for (let a = 0; a < k; a++) if (s[a * m + j] !== 0 && ++count > 1) return true;
   }
   return false;
-}
-
-function swapRows(a: Float64Array, width: number, x: number, y: number): void {
-  for (let j = 0; j < width; j++) {
-    const t = a[x * width + j];
-    a[x * width + j] = a[y * width + j];
-    a[y * width + j] = t;
-  }
 }
 
 /** Rank of the constraint rows of the held species plus `extra` (or -1 for none). */

@@ -2,7 +2,7 @@
 // extent solution, so that trace species come out with full relative
 // precision and conservation holds to rounding.
 import { groupTotals, type Compact } from './compact';
-import { dot2Difference, luFactor, luSolve, nullSpaceBasis, reducedRowEchelon, type RowEchelon } from './linalg';
+import { dot2Difference, luFactor, luSolve, nullSpaceBasis, reducedRowEchelon, swapRows, type RowEchelon } from './linalg';
 import { buildDirections, FREE, HELD, RANK_TOLERANCE, type Directions, type ExtentState, type StageOutcome } from './newton';
 
 /** Iteration cap of the polish. */
@@ -387,13 +387,7 @@ function conservationRows(c: Compact, held: Uint8Array, n: Float64Array, ws: Pol
     }
     if (col < 0) break;
     used[col] = 1;
-    if (row !== rank) {
-      for (let j = 0; j < m; j++) {
-        const t = rows[row * m + j];
-        rows[row * m + j] = rows[rank * m + j];
-        rows[rank * m + j] = t;
-      }
-    }
+    if (row !== rank) swapRows(rows, m, row, rank);
     const inv = 1 / rows[rank * m + col];
     for (let j = 0; j < m; j++) rows[rank * m + j] *= inv;
     rows[rank * m + col] = 1;
