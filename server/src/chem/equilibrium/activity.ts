@@ -81,12 +81,16 @@ export function quotientLogActivities(p: Prepared, n: ArrayLike<number>, out: Fl
  * +Infinity if only a reactant has.
  */
 export function lnQuotient(p: Prepared, r: number, logA: Float64Array): number {
-  const S = p.speciesCount;
+  return lnQuotientRow(p.nu, r * p.speciesCount, p.speciesCount, logA);
+}
+
+/** ln Q as {@link lnQuotient} for the S coefficients of `nu` from index `start`. */
+export function lnQuotientRow(nu: ArrayLike<number>, start: number, S: number, logA: Float64Array): number {
   let sum = 0;
   let productAbsent = false;
   let reactantAbsent = false;
   for (let i = 0; i < S; i++) {
-    const v = p.nu[r * S + i];
+    const v = nu[start + i];
     if (v === 0) continue;
     const l = logA[i];
     if (l === Number.NEGATIVE_INFINITY) {

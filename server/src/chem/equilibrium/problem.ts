@@ -367,9 +367,12 @@ interface Runnable {
  * point, formingCombination (combinations.ts) looks for the largest set of such species; its
  * reactions become active, it is recorded as a kick pair (index into `combinations`, 0), and
  * the fixed point goes on. A combination that also involves a species it does not form (that
- * species stays exactly zero, e.g. an intermediate made and used in step) is NOT handled:
- * its reactions would touch a species forced to zero, which the extent model cannot
- * represent, so formability then stays as the fixed point left it (a known limitation).
+ * species stays exactly zero, e.g. an intermediate made and used up in step) cannot be run
+ * here: its reactions touch a species held at zero, which the extent model cannot
+ * represent. Its species are still marked formable (so `formable` ends as the exact set of
+ * species some feasible change can form) but no reaction is made active by it;
+ * solveEquilibrium then solves the problem again with such reactions replaced by their
+ * combinations that leave the never-formable species alone (restriction.ts).
  */
 function runnableReactions(
   nu: Float64Array,
@@ -408,7 +411,7 @@ function runnableReactions(
     const combination = formingCombination(nu, S, R, zero);
     if (!combination) break;
     // Supported only when every species of the combination's reactions can then exist; else
-    // (it also involves a species that stays zero) formability stays as the fixed point left it.
+    // (it also involves a species that stays zero) only formability records it.
     const next = formable.slice();
     for (const i of combination.formed) next[i] = 1;
     let supported = true;
@@ -416,8 +419,8 @@ function runnableReactions(
       if (combination.extents[r] === 0) continue;
       for (let i = 0; i < S; i++) if (nu[r * S + i] !== 0 && !next[i]) supported = false;
     }
-    if (!supported) break;
     formable.set(next);
+    if (!supported) continue;
     for (let r = 0; r < R; r++) {
       const x = combination.extents[r];
       if (x > 0) runForward[r] = 1;

@@ -22,7 +22,8 @@ import {
 } from './newton';
 import { absentPhaseTest, formAbsentPhase, holdDwindledPhasesAbsent } from './phases';
 import { conservationLaws, polish } from './polish';
-import { GAS_GROUP, prepare, type Prepared } from './problem';
+import { GAS_GROUP, prepare, PURE, type Prepared } from './problem';
+import { expandedResult, restrictedProblem } from './restriction';
 import { solveSingleReaction } from './single';
 import { GAS_CONSTANT, type EquilibriumProblem, type EquilibriumResult } from './types';
 
@@ -110,10 +111,15 @@ function solveArrays(p: Prepared): SolveArrays {
   return pooledSolveArrays;
 }
 
-function solveChecked(problem: EquilibriumProblem): EquilibriumResult {
+function solveChecked(problem: EquilibriumProblem, restricted = false): EquilibriumResult {
   const prepared = prepare(problem);
   if (!prepared.ok) return invalidShaped(problem, 'invalid', prepared.message);
   const p = prepared.prepared;
+  // Reactions that can only run in step through a never-formable species: solve the exact
+  // restriction to their combinations that leave it alone (restriction.ts). Once is enough:
+  // the restricted problem's never-formable species touch no reaction.
+  const restriction = restricted ? undefined : restrictedProblem(problem, p);
+  if (restriction) return expandedResult(problem, restriction, solveChecked(restriction.problem, true));
   const { n, logA, extents } = solveArrays(p);
   for (let i = 0; i < p.speciesCount; i++) n[i] = p.n0[i];
   for (let r = 0; r < p.reactionCount; r++) extents[r] = 0;
@@ -383,10 +389,16 @@ function verifyMassAction(p: Prepared, n: Float64Array, logA: Float64Array): str
       if (v < 0) reactantAbsent = true;
       else productAbsent = true;
     }
-    // A species of a whole mixture phase that is absent has no defined activity: no check.
-    if (vanishedPhase) continue;
-    const gap = lnQuotient(p, r, logA) - p.lnK[r];
     const label = reactions[r].label;
+    if (vanishedPhase) {
+      // A species of a whole mixture phase that is absent has no defined activity; but where
+      // the reaction can run towards it from species all present, forming it as a pure phase
+      // must not lower G (its true potential there, with ln y <= 0, is lower still).
+      const problemFound = vanishedPhaseDirection(p, n, logA, r, groupAmount);
+      if (problemFound) return `reaction "${label}" ${problemFound}`;
+      continue;
+    }
+    const gap = lnQuotient(p, r, logA) - p.lnK[r];
     if (!reactantAbsent && !productAbsent) {
       if (!(Math.abs(gap) < LNQ_TOLERANCE)) return `reaction "${label}" is not at equilibrium (ln Q − ln K = ${gap})`;
     } else if (reactantAbsent && !productAbsent) {
@@ -394,6 +406,30 @@ function verifyMassAction(p: Prepared, n: Float64Array, logA: Float64Array): str
     } else if (productAbsent && !reactantAbsent) {
       if (!(gap > -LNQ_TOLERANCE)) return `reaction "${label}" has a product absent but Q < K`;
     }
+  }
+  return undefined;
+}
+
+/**
+ * The check of verifyMassAction for a reaction that touches an absent mole-fraction phase:
+ * in each direction whose consumed species are all present and whose absent formed species
+ * all belong to absent phases (mixture or pure), ln Q with those species at their pure-phase
+ * activity must not be below ln K by more than LNQ_TOLERANCE: the phase would form otherwise.
+ */
+function vanishedPhaseDirection(p: Prepared, n: Float64Array, logA: Float64Array, r: number, groupAmount: readonly number[]): string | undefined {
+  const S = p.speciesCount;
+  for (let dir = 1; dir >= -1; dir -= 2) {
+    let possible = true;
+    let lnQ = 0;
+    for (let i = 0; i < S && possible; i++) {
+      const v = p.nu[r * S + i] * dir;
+      if (v === 0) continue;
+      if (n[i] > 0) lnQ += v * logA[i];
+      else if (v < 0) possible = false;
+      else if (p.model[i] === PURE || (p.group[i] >= 0 && groupAmount[p.group[i]] === 0)) lnQ += v * p.offset[i];
+      else possible = false;
+    }
+    if (possible && lnQ - dir * p.lnK[r] < -LNQ_TOLERANCE) return `could still form an absent ${dir > 0 ? 'product' : 'reactant'} phase (ln Q − ln K = ${dir * lnQ - p.lnK[r]} with it pure)`;
   }
   return undefined;
 }

@@ -50,7 +50,10 @@ export interface EquilibriumResult {
   /**
    * Net extent of each reaction from n0, mol. Only a basis of linearly independent active
    * reactions (the first ones in input order) carries extents; a reaction dropped as a
-   * consistent combination of earlier ones, and an inactive reaction, reports 0.
+   * consistent combination of earlier ones, and an inactive reaction, reports 0. Reactions
+   * that can only run in step through a species that never forms (an intermediate made and
+   * used up together) carry the extents of the combinations that ran, so n = n0 + ν·ξ
+   * holds for the reactions as given.
    */
   readonly extents: readonly number[];
   /** Activities at equilibrium (solid and solvent: 1 when present, 0 when absent). */
