@@ -123,7 +123,7 @@ describe('solve --json', () => {
     expect(j.batches.map((b) => b.name)).toEqual(['open', 'shut', 'roomy']);
     for (const b of j.batches) {
       // a converged batch has no `message` key at all
-      expect(Object.keys(b).sort()).toEqual(['adiabatic_rise_K', 'converged', 'heat_kJ', 'name', 'pressure_bar', 'reactions', 'species', 'sweeps', 'targets', 'temperature_K', 'vessel_L']);
+      expect(Object.keys(b).sort()).toEqual(['adiabatic_rise_K', 'converged', 'from', 'heat_kJ', 'name', 'pressure_bar', 'reactions', 'species', 'sweeps', 'targets', 'temperature_K', 'vessel_L']);
       expect(b.converged).toBe(true);
       for (const s of b.species) expect(Object.keys(s).sort()).toEqual(['equilibrium_mol', 'formula', 'initial_mol', 'name', 'phase']);
       for (const x of b.reactions) expect(Object.keys(x).sort()).toEqual(['K', 'extent_mol', 'label']);
@@ -175,7 +175,7 @@ describe('solve --json', () => {
     // ab: B/A = 2, so A = 1/3 (closed form)
     expectClose(good.species.find((s) => s.name === 'A')?.equilibrium_mol ?? null, 1 / 3, 1e-12, 'A');
     for (const b of [loop, lacking]) {
-      expect(Object.keys(b).sort()).toEqual(['adiabatic_rise_K', 'converged', 'heat_kJ', 'message', 'name', 'pressure_bar', 'reactions', 'species', 'sweeps', 'targets', 'temperature_K', 'vessel_L']);
+      expect(Object.keys(b).sort()).toEqual(['adiabatic_rise_K', 'converged', 'from', 'heat_kJ', 'message', 'name', 'pressure_bar', 'reactions', 'species', 'sweeps', 'targets', 'temperature_K', 'vessel_L']);
       expect(b.converged).toBe(false);
       expect(b.message).toMatch(/\S/);
       expect(b.pressure_bar).toBeNull();

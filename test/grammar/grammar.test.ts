@@ -659,6 +659,25 @@ describe('batches', () => {
     expectNoScope(uses, 'R2', 'meta.formula');
   });
 
+  it('a follow-on batch: `from` and its source, then add, remove and vent lines', async () => {
+    const lines = await tokenize(['batch dried from trial-1 at 70 °C', '  remove water 90 %', '  add EtOH 0.5 equiv', '  vent to 2 bar', '  vent'].join('\n'));
+    const [header, remove, add, ventTo, vent] = lines;
+    expectScope(header, 'batch', 'keyword.other.batch.eqnb');
+    expectScope(header, 'dried', 'entity.name.section.batch.eqnb');
+    expectScope(header, 'from', 'keyword.other.from.eqnb');
+    expectScope(header, 'trial-1', 'entity.name.section.batch.eqnb');
+    expectScope(header, '70', 'constant.numeric.eqnb');
+    expectScope(remove, 'remove', 'keyword.control.operation.eqnb');
+    expectScope(remove, '%', 'keyword.other.unit.eqnb');
+    expectScope(add, 'add', 'keyword.control.operation.eqnb');
+    expectScope(add, 'EtOH', 'variable.other.species.eqnb');
+    expectScope(add, 'equiv', 'keyword.other.unit.eqnb');
+    expectScope(ventTo, 'vent', 'keyword.control.operation.eqnb');
+    expectScope(ventTo, 'to', 'keyword.other.to.eqnb');
+    expectScope(ventTo, 'bar', 'keyword.other.unit.eqnb');
+    expectScope(vent, 'vent', 'keyword.control.operation.eqnb');
+  });
+
   it('inside a batch, K and formulas are amounts; a column-0 note does not end the batch', async () => {
     const lines = await tokenize(['batch b2 at 298.15 K, 2 bar', '  K 0.5 mol', '# a note', '  H2O 100 mL', '  NaCl 5 g'].join('\n'));
     const [header, k, note, water, salt] = lines;

@@ -9,6 +9,7 @@ import type { CliIo } from './commands';
 
 interface JsonBatch {
   name: string;
+  from: string | null;
   temperature_K: number | null;
   pressure_bar: number | null;
   vessel_L: number | null;
@@ -48,9 +49,10 @@ export function solve(file: string, only: string | undefined, json: boolean, io:
     if (!converged) failed = true;
     out.push({
       name: b.name,
-      temperature_K: b.temperature ?? null,
+      from: b.source ?? null,
+      temperature_K: result ? result.inputs.temperature : (b.temperature ?? null),
       pressure_bar: result && converged ? result.pressure / 1e5 : null,
-      vessel_L: b.vessel !== undefined ? b.vessel * 1000 : null,
+      vessel_L: result ? (result.inputs.vessel !== undefined ? result.inputs.vessel * 1000 : null) : b.vessel !== undefined ? b.vessel * 1000 : null,
       converged,
       ...(converged ? {} : { message: report.problem ?? 'not solved' }),
       species: result

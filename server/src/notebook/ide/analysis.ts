@@ -6,7 +6,7 @@ import type { ParseResult, StatementNode } from '../syntax/tree';
 import { BalanceCache, buildModel } from '../semantic/build';
 import { diagnostic, type Diagnostic } from '../semantic/codes';
 import type { BatchModel, NotebookModel, ReactionModel, SpeciesDecl } from '../semantic/model';
-import { batchInputs } from '../semantic/batch-inputs';
+import { batchInputs, type SourceState } from '../semantic/batch-inputs';
 import { resultDiagnostics, SolveCache, solveBatch, type BatchResult } from '../semantic/batch-results';
 import { batchSweeps, type SweepResult } from '../semantic/sweeps';
 import { batchTargets, type TargetResult } from '../semantic/targets';
@@ -54,24 +54,50 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
   const results = new Map<BatchModel, BatchResult>();
   const sweeps = new Map<BatchModel, readonly SweepResult[]>();
   const targets = new Map<BatchModel, readonly TargetResult[]>();
-  for (const batch of model.batches) {
-    const inputs = batchInputs(batch, model);
+  // Batches by name (the first of a duplicated name), so a follow-on finds its source.
+  const byName = new Map<string, BatchModel>();
+  for (const b of model.batches) if (b.node.name && !byName.has(b.name)) byName.set(b.name, b);
+  const done = new Map<BatchModel, SourceState | undefined>();
+  // Solves a batch once, its source first (chains of any length; a loop is an error from build.ts and is not followed).
+  const solve = (batch: BatchModel, chain: readonly BatchModel[]): SourceState | undefined => {
+    if (done.has(batch)) return done.get(batch);
+    let source: SourceState | undefined;
+    if (batch.source !== undefined) {
+      const from = byName.get(batch.source);
+      if (!from || chain.includes(from) || from === batch) {
+        done.set(batch, undefined);
+        return undefined;
+      }
+      source = solve(from, [...chain, batch]);
+      if (!source) {
+        done.set(batch, undefined);
+        return undefined;
+      }
+    }
+    const inputs = batchInputs(batch, model, source);
     batchDiagnostics.push(...inputs.diagnostics);
-    if (!inputs.inputs) continue;
+    if (!inputs.inputs) {
+      done.set(batch, undefined);
+      return undefined;
+    }
     const result = solveBatch(inputs.inputs, cache);
     results.set(batch, result);
     batchDiagnostics.push(...resultDiagnostics(batch, result));
     if (batch.node.properties.some((p) => p.type === 'sweep')) {
-      const s = batchSweeps(batch, model, cache);
+      const s = batchSweeps(batch, model, cache, source);
       batchDiagnostics.push(...s.diagnostics);
       sweeps.set(batch, s.sweeps);
     }
     if (batch.node.properties.some((p) => p.type === 'target')) {
-      const t = batchTargets(batch, model, cache);
+      const t = batchTargets(batch, model, cache, source);
       batchDiagnostics.push(...t.diagnostics);
       targets.set(batch, t.targets);
     }
-  }
+    const state: SourceState = { name: batch.name, inputs: inputs.inputs, equilibrium: result.equilibrium, converged: result.status === 'converged' };
+    done.set(batch, state);
+    return state;
+  };
+  for (const batch of model.batches) solve(batch, []);
   const lines = new LineIndex(text);
   const diagnostics = applyAcceptances(
     [...syntax.errors.map((e) => diagnostic(e.code, e.message, e.start, e.end)), ...model.diagnostics, ...batchDiagnostics],

@@ -7,7 +7,7 @@ import { formatQuantity, trim } from '../../chem/units';
 import type { KSource } from '../../chem/thermo';
 import { PHASE_NAMES, type BatchModel } from '../semantic/model';
 import type { BatchResult } from '../semantic/batch-results';
-import type { ReversibleInput } from '../semantic/batch-inputs';
+import type { FollowOn, ReversibleInput } from '../semantic/batch-inputs';
 import type { SweepResult } from '../semantic/sweeps';
 import type { TargetResult } from '../semantic/targets';
 import { R } from '../../chem/thermo';
@@ -90,17 +90,30 @@ export function celsius(T: number): string {
 export function batchReport(analysis: Analysis, batch: BatchModel): BatchReport {
   const title = `batch ${batch.name}`;
   const conditions: string[] = [];
-  conditions.push(`Temperature: ${batch.temperature !== undefined ? formatQuantity(batch.temperature, 'temperature') : 'not readable'}`);
-  if (batch.vessel !== undefined) {
-    conditions.push(`Closed vessel: ${formatQuantity(batch.vessel, 'volume')}${batch.volume !== undefined ? `, of which ${formatQuantity(batch.volume, 'volume')} liquid` : ''} (constant volume)`);
+  const result = analysis.results.get(batch);
+  const inputs = result?.inputs;
+  // A follow-on batch keeps its source's temperature, pressure, vessel and volume unless it gives its own.
+  const source = batch.source !== undefined ? ` (as in \`${batch.source}\`)` : '';
+  if (batch.source !== undefined) conditions.push(`Starts from: the equilibrium contents of \`${batch.source}\`, then the changes below`);
+  const T = batch.temperature ?? inputs?.temperature;
+  conditions.push(`Temperature: ${T !== undefined ? `${formatQuantity(T, 'temperature')}${batch.temperature === undefined ? source : ''}` : 'not readable'}`);
+  const vessel = batch.vessel ?? inputs?.vessel;
+  const volume = batch.volume ?? inputs?.liquidVolume;
+  if (vessel !== undefined) {
+    conditions.push(
+      `Closed vessel: ${formatQuantity(vessel, 'volume')}${volume !== undefined ? `, of which ${formatQuantity(volume, 'volume')} liquid` : ''} (constant volume)${batch.vessel === undefined ? source : ''}`,
+    );
   } else {
     const written = batch.node.pressure ? analysis.text.slice(batch.node.pressure.start, batch.node.pressure.end) : '';
-    conditions.push(
-      `Pressure: ${batch.pressureIsDefault ? '1 atm (default: none written)' : `${written}${written.endsWith(' bar') ? '' : ` (${formatQuantity(batch.pressure, 'pressure')})`}`}, constant`,
-    );
-    if (batch.volume !== undefined) conditions.push(`Liquid volume: ${formatQuantity(batch.volume, 'volume')}`);
+    const P = inputs?.conditions.kind === 'constant-pressure' ? inputs.conditions.P : batch.pressure;
+    const shown = !batch.pressureIsDefault
+      ? `${written}${written.endsWith(' bar') ? '' : ` (${formatQuantity(batch.pressure, 'pressure')})`}`
+      : batch.source !== undefined
+        ? `${formatQuantity(P, 'pressure')}${source}`
+        : '1 atm (default: none written)';
+    conditions.push(`Pressure: ${shown}, constant`);
+    if (volume !== undefined) conditions.push(`Liquid volume: ${formatQuantity(volume, 'volume')}${batch.volume === undefined ? source : ''}`);
   }
-  const result = analysis.results.get(batch);
   if (!result) {
     const own = analysis.diagnostics.filter((d) => d.severity === 'error' && d.start >= batch.node.start && d.start < batch.node.end);
     return {
@@ -159,8 +172,7 @@ export function sweepTable(s: SweepResult, base: BatchResult): { title: string; 
     if (basis !== undefined && base.conversion !== undefined) row.push(r.conversion !== undefined ? percent(r.conversion) : '—');
     for (const i of products) {
       const y = r.yields.find((x) => x.index === i);
-      const start = r.afterOneWay[i];
-      row.push(y && y.theoretical > start ? percent(Math.max(0, (y.formed - start) / (y.theoretical - start))) : '—');
+      row.push(y && y.theoretical > r.afterOneWay[i] ? percent(Math.max(0, yieldFraction(r, y))) : '—');
     }
     if (hasGas) row.push(num(r.pressure / 1e5));
     if (firstReaction) row.push(num(Math.exp(r.inputs.reversible[0].lnK)));
@@ -175,6 +187,7 @@ export function sweepTable(s: SweepResult, base: BatchResult): { title: string; 
 function solvedReport(title: string, conditions: string[], result: BatchResult): BatchReport {
   const { inputs } = result;
   const T = inputs.temperature;
+  const from = inputs.from;
   const hasOneWay = inputs.oneWay.length > 0;
   const rows: string[][] = [];
   const phasesPresent = new Set<string>();
@@ -188,14 +201,24 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
     else if (s.phase === 'aq' && inputs.liquidVolume) shown = `${num(eq / inputs.liquidVolume / 1000)} mol/L`;
     else shown = `${num(eq * s.species.formula.molarMass)} g`;
     if ((s.phase === 's' || s.solvent) && result.absent.has(i)) shown = s.charged > 0 || result.afterOneWay[i] > 0 ? 'used up' : 'does not form';
-    const row = [s.label, `${s.solvent ? 'solvent' : s.phase}`, num(result.charged[i])];
+    const row = [s.label, `${s.solvent ? 'solvent' : s.phase}`];
+    if (from) row.push(num(from.before[i]));
+    row.push(num(result.charged[i]));
     if (hasOneWay) row.push(num(result.afterOneWay[i]));
     row.push(signed(eq - result.charged[i]), num(eq), shown);
     rows.push(row);
   });
   const species: Table = {
-    header: ['Species', 'Phase', 'Initial / mol', ...(hasOneWay ? ['After one-way / mol'] : []), 'Change / mol', 'Equilibrium / mol', 'At equilibrium'],
-    align: ['l', 'l', 'r', ...(hasOneWay ? (['r'] as const) : []), 'r', 'r', 'r'],
+    header: [
+      'Species',
+      'Phase',
+      ...(from ? ['Before change / mol', 'After change / mol'] : ['Initial / mol']),
+      ...(hasOneWay ? ['After one-way / mol'] : []),
+      'Change / mol',
+      'Equilibrium / mol',
+      'At equilibrium',
+    ],
+    align: ['l', 'l', ...(from ? (['r', 'r'] as const) : (['r'] as const)), ...(hasOneWay ? (['r'] as const) : []), 'r', 'r', 'r'],
     rows,
   };
   const reactionRows: string[][] = [];
@@ -209,25 +232,28 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
     reactionRows.push([o.input.reaction.label, num(K), kSourceText(o.input.source), Number.isNaN(o.lnQ0) ? '—' : num(Math.exp(o.lnQ0)), direction, num(o.extent)]);
   }
   const reactions: Table = {
-    header: ['Reaction', `K at ${celsius(T)}`, 'K from', 'Q at start', 'Shift', 'Extent / mol'],
+    header: ['Reaction', `K at ${celsius(T)}`, 'K from', from ? 'Q after change' : 'Q at start', 'Shift', 'Extent / mol'],
     align: ['l', 'r', 'l', 'r', 'l', 'r'],
     rows: reactionRows,
   };
   const summary: string[] = [];
+  const cautions: string[] = [];
+  if (from) followOnSummary(result, from, summary, cautions);
   let headline: string | undefined;
   if (inputs.basis !== undefined && result.conversion !== undefined) {
     const label = inputs.species[inputs.basis].label;
-    summary.push(`Conversion of ${label}: **${percent(result.conversion)}**`);
+    const chain = from
+      ? ` (of ${num(inputs.basisFed ?? 0)} mol fed over the chain from \`${from.source}\`${inputs.basisWithdrawn ? `, less ${num(inputs.basisWithdrawn)} mol taken out` : ''})`
+      : '';
+    summary.push(`Conversion of ${label}: **${percent(result.conversion)}**${chain}`);
     headline = `${percent(result.conversion)} conversion of ${label}`;
   }
   for (const y of result.yields) {
     const label = inputs.species[y.index].label;
-    const start = result.afterOneWay[y.index];
-    const fraction = (y.formed - start) / (y.theoretical - start);
+    const fraction = yieldFraction(result, y);
     summary.push(`Yield of ${label}: ${percent(Math.max(0, fraction))} (${num(y.formed)} of ${num(y.theoretical)} mol theoretical)`);
     if (!headline) headline = `${percent(Math.max(0, fraction))} yield of ${label}`;
   }
-  const cautions: string[] = [];
   if (result.gasMoles > 0) {
     if (inputs.conditions.kind === 'constant-volume') {
       summary.push(`Final total pressure: **${num(result.pressure / 1e5)} bar** (${num(result.gasMoles)} mol of gas in ${formatQuantity(inputs.conditions.gasVolume, 'volume')} of gas space)`);
@@ -284,6 +310,46 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
   if (chargedFrom.length > 0) summary.push(`Amounts converted: ${chargedFrom.join('; ')}`);
   const assumptions = [...phasesPresent].map((p) => ASSUMPTIONS[p]).filter((a): a is string => a !== undefined);
   return { title, conditions, solved: true, species, reactions, summary, cautions, assumptions, headline, sweeps: [], targets: [] };
+}
+
+/**
+ * A product's yield: of a batch of its own, what this step formed against what it could
+ * form; of a follow-on batch, what is in the vessel against the theoretical amount (the
+ * chain's product so far counts, since the chain made it).
+ */
+export function yieldFraction(result: BatchResult, y: BatchResult['yields'][number]): number {
+  if (result.inputs.from) return y.formed / y.theoretical;
+  const start = result.afterOneWay[y.index];
+  return (y.formed - start) / (y.theoretical - start);
+}
+
+/** The changes of a follow-on batch, and how each reaction stands right after them. */
+function followOnSummary(result: BatchResult, from: FollowOn, summary: string[], cautions: string[]): void {
+  const { inputs } = result;
+  const lines: string[] = [];
+  for (const step of from.steps) {
+    const effect = step.changes.map((c) => `${inputs.species[c.index].label} ${signed(c.mol)} mol`).join(', ');
+    let line = `\`${step.text}\`: ${effect || 'no change'}`;
+    if (step.vent) {
+      const litres = ((step.vent.released * R * OFF_GAS_T) / OFF_GAS_P) * 1000;
+      line += step.vent.released > 0 ? `; gas let down from ${num(step.vent.from / 1e5)} to ${num(step.vent.to / 1e5)} bar, ${num(step.vent.released)} mol let out (${num(litres)} L at 1 atm and 25 °C)` : '';
+      if (step.vent.released > 0) {
+        cautions.push(
+          `Venting lets out ${num(step.vent.released)} mol of gas (${num(litres)} L at 1 atm and 25 °C): send it to a safe place (scrubber, flare or vent stack as the gas requires), let the vessel down slowly, and follow local codes and your site's process-safety review.`,
+        );
+      }
+    }
+    if (step.note) line += ` (${step.note})`;
+    lines.push(line);
+  }
+  summary.push(`Changes from \`${from.source}\`: ${lines.length > 0 ? lines.join('; ') : 'none (only the conditions change)'}`);
+  for (const o of result.reactions) {
+    if (o.inactive || Number.isNaN(o.lnQ0)) continue;
+    const K = Math.exp(o.input.lnK);
+    const direction = directionOf(o.lnQ0, o.input.lnK);
+    const size = direction === 'at equilibrium' ? '' : `, by ${num(Math.abs(o.extent))} mol of reaction`;
+    summary.push(`Right after the change, \`${o.input.reaction.label}\` has Q = ${num(Math.exp(o.lnQ0))} against K = ${num(K)}: it shifts ${direction.replace(/^[→←] /, '')}${size}`);
+  }
 }
 
 function directionOf(lnQ0: number, lnK: number): string {

@@ -95,7 +95,16 @@ export function completions(analysis: Analysis, offset: number): CompletionResul
   const atMatch = /\bat\s+[+\-−]?[\d.]+(?:[eE][+\-−]?\d+)?\s*(\S*)$/.exec(before);
   if (atMatch) return result([...TEMPERATURE_UNITS]);
   if (/^batch\b/.test(before) && /,\s*[\d.]+(?:[eE][+\-−]?\d+)?\s+\S*$/.test(before)) return result([...PRESSURE_UNITS]);
-  if (/^batch\s+\S+\s+\S*$/.test(before)) return result([{ label: 'at', kind: 'keyword', detail: 'the batch temperature follows' }]);
+  if (/^batch\s+\S+\s+from\s+\S*$/.test(before)) {
+    return result(analysis.model.batches.filter((b) => b.node.name && !before.startsWith(`batch ${b.name} `)).map((b) => ({ label: b.name, kind: 'batch' as const, detail: 'start from the equilibrium contents of this batch' })));
+  }
+  if (/^batch\s+\S+\s+from\s+\S+\s+\S*$/.test(before)) return result([{ label: 'at', kind: 'keyword', detail: 'a new temperature (and pressure) for the follow-on batch' }]);
+  if (/^batch\s+\S+\s+\S*$/.test(before)) {
+    return result([
+      { label: 'at', kind: 'keyword', detail: 'the batch temperature follows' },
+      { label: 'from', kind: 'keyword', detail: 'a follow-on batch: starts from the equilibrium contents of another batch' },
+    ]);
+  }
 
   if (!indented) {
     if (/^species\s+\w+\s*=\s*\S*$/.test(before) || isInEquation(before)) {
@@ -124,13 +133,16 @@ export function completions(analysis: Analysis, offset: number): CompletionResul
       return result(analysis.model.reactions.map((r) => ({ label: r.label, kind: 'label' as const, detail: `${r.reversible ? 'reversible' : 'one-way'}: ${text.slice(r.equationStart, r.equationEnd)}` })));
     }
     if (words[0] === 'basis') return result(speciesItems());
+    if ((words[0] === 'add' || words[0] === 'remove') && words.length === 2 && !/\s$/.test(before)) return result(speciesItems());
+    if (words[0] === 'remove' && NUMBER_THEN_PARTIAL.test(before)) return result([{ label: '%', kind: 'unit', detail: 'percentage of what is there' }, ...AMOUNT_UNITS]);
+    if (words[0] === 'vent') return words.length === 1 || (words.length === 2 && !/\s$/.test(before)) ? result([{ label: 'to', kind: 'keyword', detail: 'vent down to a stated pressure (default 1 atm)' }]) : NUMBER_THEN_PARTIAL.test(before) ? result([...PRESSURE_UNITS]) : result([]);
     if (words[0] === 'vessel' || words[0] === 'volume') return NUMBER_THEN_PARTIAL.test(before) ? result([...VOLUME_UNITS]) : result([]);
     if (words[0] === 'heat') return NUMBER_THEN_PARTIAL.test(before) ? result([{ label: 'kJ/K', kind: 'unit', detail: 'heat capacity' }]) : result([]);
     if (NUMBER_THEN_PARTIAL.test(before)) return result([...AMOUNT_UNITS]);
     if (words.length <= 1) {
       return result([
         ...Object.entries(KNOWN_PROPERTIES.batch).map(([k, spec]) => ({ label: k, kind: 'property' as const, detail: spec.summary })),
-        ...speciesItems(),
+        ...(followOnAbove(analysis, lineStart) ? OPERATION_ITEMS : speciesItems()),
       ]);
     }
     return result([]);
@@ -145,6 +157,19 @@ export function completions(analysis: Analysis, offset: number): CompletionResul
     if (words.length <= 1) return result(Object.entries(table).map(([k, spec]) => ({ label: k, kind: 'property' as const, detail: spec.summary })));
   }
   return result([]);
+}
+
+/** Operation lines of a follow-on batch. */
+const OPERATION_ITEMS: readonly CompletionItem[] = [
+  { label: 'add', kind: 'keyword', detail: 'add SPECIES AMOUNT: charge more (any amount form; equiv is relative to the first batch\'s basis)' },
+  { label: 'remove', kind: 'keyword', detail: 'remove SPECIES AMOUNT or PERCENT: take some out (e.g. `remove water 90 %`)' },
+  { label: 'vent', kind: 'keyword', detail: 'vent [to PRESSURE]: let the closed vessel\'s gas down to 1 atm or the given pressure' },
+];
+
+/** Whether the batch above the line is a follow-on batch (`batch B from A`). */
+function followOnAbove(analysis: Analysis, lineStart: number): boolean {
+  const s = analysis.statementAt(Math.max(0, lineStart - 1));
+  return s?.node.type === 'batch' && s.node.from !== undefined;
 }
 
 /** A reaction line: not a species or batch statement, and the cursor is in its terms. */

@@ -91,8 +91,10 @@ function statementLines(analysis: Analysis, s: StatementNode): LineText[] {
     const side = (terms: readonly TermNode[]): string => terms.map(termText).join(' + ');
     body = `${s.label ? `${s.label.text}: ` : ''}${side(s.left)} ${s.arrow.text} ${side(s.right)}`;
   }
-  if (s.type === 'batch' && s.name && s.temperature) {
-    body = `batch ${s.name.text} at ${quantityText(s.temperature)}${s.pressure ? `, ${quantityText(s.pressure)}` : ''}`;
+  if (s.type === 'batch' && s.name && (s.temperature || (s.from && s.source && !s.at))) {
+    const from = s.from && s.source ? ` from ${s.source.text}` : '';
+    const at = s.temperature ? ` at ${quantityText(s.temperature)}${s.pressure ? `, ${quantityText(s.pressure)}` : ''}` : '';
+    body = `batch ${s.name.text}${from}${at}`;
   }
   if (body !== undefined) out.push({ ...header, body, note });
 
@@ -100,11 +102,12 @@ function statementLines(analysis: Analysis, s: StatementNode): LineText[] {
   const props = s.properties;
   const keyOf = (p: (typeof props)[number]): string => {
     if (p.type === 'property') return p.key.map((k: Token) => k.text).join(' ');
+    if (p.type === 'operation') return '';
     if (p.type === 'amount') return `${p.species.text}${p.phase ? (p.phase.start === p.species.end ? p.phase.text : ` ${p.phase.text}`) : ''}`;
     return '';
   };
   const width = (x: string): number => Array.from(x).length;
-  const keyWidth = Math.max(0, ...props.filter((p) => p.type !== 'error-line' && p.type !== 'sweep' && p.type !== 'target').map((p) => width(keyOf(p))));
+  const keyWidth = Math.max(0, ...props.filter((p) => p.type === 'property' || p.type === 'amount').map((p) => width(keyOf(p))));
   const numberWidth = Math.max(0, ...props.map((p) => (p.type === 'amount' && p.value ? width(p.value.number.text) : 0)));
   for (const p of props) {
     // A sweep line keeps its own layout (its words are already single-spaced by convention).
@@ -113,7 +116,11 @@ function statementLines(analysis: Analysis, s: StatementNode): LineText[] {
     const key = keyOf(p);
     const pad = ' '.repeat(keyWidth - width(key));
     let line: string;
-    if (p.type === 'amount') {
+    if (p.type === 'operation') {
+      const phase = p.phase ? (p.species && p.phase.start === p.species.end ? p.phase.text : ` ${p.phase.text}`) : '';
+      const what = p.species ? ` ${p.species.text}${phase}` : '';
+      line = `${INDENT}${p.keyword.text}${what}${p.to ? ' to' : ''}${p.value ? ` ${quantityText(p.value)}` : ''}`;
+    } else if (p.type === 'amount') {
       const n = p.value ? p.value.number.text : '';
       const amount = p.value ? `${' '.repeat(numberWidth - width(n))}${n}${p.value.unit ? ` ${p.value.unit.text}` : ''}` : '';
       line = `${INDENT}${key}${amount ? `${pad} ${amount}` : ''}`;

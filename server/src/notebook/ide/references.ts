@@ -32,6 +32,8 @@ export function nameOccurrences(analysis: Analysis): NameOccurrence[] {
   }
   for (const b of model.batches) {
     for (const a of b.amounts) if (a.species?.declared) at('species', a.node.species, false);
+    for (const op of b.operations) if (op.species?.declared && op.node.species) at('species', op.node.species, false);
+    if (b.node.source) at('batch', b.node.source, false);
     for (const line of b.node.properties) {
       if (line.type !== 'property') continue;
       if (line.keyText === 'uses') for (const n of line.names) at('label', n, false);

@@ -57,7 +57,7 @@ export function semanticTokens(analysis: Analysis): SemanticToken[] {
     };
     switch (t.kind) {
       case 'keyword':
-        push(t.text === 'species' || t.text === 'batch' || t.text === 'at' ? 'keyword' : 'property');
+        push(t.text === 'species' || t.text === 'batch' || t.text === 'at' || t.text === 'from' ? 'keyword' : 'property');
         break;
       case 'name':
         // A species declaration's name, a batch name, or a name in `basis` / `uses`.

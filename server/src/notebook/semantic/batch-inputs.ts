@@ -4,10 +4,11 @@
 // temperature, and the conditions (constant T and P, or a closed vessel).
 // Missing data become errors on the exact line, saying what to add.
 import { enthalpyAt, lnKAt, hessData, R, type FormationData, type KSource, type ReactionThermo } from '../../chem/thermo';
-import { formatQuantity } from '../../chem/units';
+import { formatQuantity, type Dimension } from '../../chem/units';
+import { forEachToken, type SyntaxElement } from '../syntax/tree';
 import { speciesIdentity } from './build';
 import { diagnostic, type Diagnostic } from './codes';
-import type { BatchAmount, BatchModel, NotebookModel, Phase, ReactionModel, ResolvedSpecies } from './model';
+import { STANDARD_ATMOSPHERE, type BatchAmount, type BatchModel, type NotebookModel, type Phase, type ReactionModel, type ResolvedSpecies } from './model';
 
 /** A species taking part in a batch: from an amount line or a used reaction. */
 export interface BatchSpecies {
@@ -55,18 +56,59 @@ export interface BatchInputs {
   readonly heatCapacity?: number;
   /** Where the heat capacity came from, for the hover. */
   readonly heatCapacityFrom?: string;
+  /** m^3 of the closed vessel (gas space plus liquid), when there is one. */
+  readonly vessel?: number;
+  /**
+   * For the conversion of the basis: mol of it charged over the whole chain of batches (the
+   * first batch's charge plus every `add`), and mol taken out by `remove` and `vent`.
+   */
+  readonly basisFed?: number;
+  readonly basisWithdrawn?: number;
+  /** Present for a follow-on batch (`batch B from A`). */
+  readonly from?: FollowOn;
+}
+
+/** What one operation line of a follow-on batch did. */
+export interface FollowOnStep {
+  /** The line as the chemist wrote it (`remove H2O 90 %`). */
+  readonly text: string;
+  /** Its effect: the species and the signed change in mol. */
+  readonly changes: readonly { readonly index: number; readonly mol: number }[];
+  /** `vent`: the gas pressure before and after (Pa), and the mol of gas let out. */
+  readonly vent?: { readonly from: number; readonly to: number; readonly released: number };
+  /** How an added amount was worked out, or why nothing changed. */
+  readonly note?: string;
+}
+
+/** A follow-on batch: where its contents come from and what was done to them. */
+export interface FollowOn {
+  readonly source: string;
+  /** mol per species (this batch's order) at the source's equilibrium, before the operations. */
+  readonly before: readonly number[];
+  readonly steps: readonly FollowOnStep[];
 }
 
 export type BatchInputResult = { readonly inputs?: BatchInputs; readonly diagnostics: readonly Diagnostic[] };
+
+/**
+ * The source of a follow-on batch as batchInputs needs it: the source's inputs and its
+ * equilibrium amounts (undefined when the source has no answer).
+ */
+export interface SourceState {
+  readonly name: string;
+  readonly inputs: BatchInputs;
+  readonly equilibrium: readonly number[];
+  readonly converged: boolean;
+}
 
 /** Reactions with any of these problems cannot be used in a solve. */
 function usable(r: ReactionModel): boolean {
   return r.balance !== undefined && r.balance.balanced;
 }
 
-export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInputResult {
+export function batchInputs(batch: BatchModel, model: NotebookModel, source?: SourceState): BatchInputResult {
   const out: Diagnostic[] = [];
-  const header = batch.node.name ?? batch.node.keyword;
+  if (batch.source !== undefined) return followOnInputs(batch, model, source, out);
   if (batch.temperature === undefined) return { diagnostics: out };
   const T = batch.temperature;
 
@@ -78,70 +120,10 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
   const gasVolume = batch.vessel !== undefined ? batch.vessel - (batch.volume ?? 0) : undefined;
   // A liquid volume that fills the vessel is already an error on its line; there is nothing to solve.
   if (gasVolume !== undefined && gasVolume <= 0) return { diagnostics: out };
-  const toMoles = (a: BatchAmount): { n: number; from?: string } | undefined => {
-    const s = a.species;
-    if (!s || a.value === undefined || !a.dimension) return undefined;
-    const M = s.formula.molarMass / 1000; // kg/mol
-    const purity = s.declared?.purity ?? 1;
-    const purityNote = purity < 1 ? ` × ${formatQuantity(purity, 'percent')} purity` : '';
-    const name = a.node.species.text;
-    const where = a.node.value ?? a.node;
-    switch (a.dimension) {
-      case 'amount':
-        return { n: a.value };
-      case 'mass':
-        if (M <= 0) {
-          out.push(diagnostic('missing-data', `\`${name}\` has no molar mass, so a mass cannot be converted to moles`, where.start, where.end));
-          return undefined;
-        }
-        return { n: (a.value * purity) / M, from: `${formatQuantity(a.value, 'mass')}${purityNote} ÷ ${(M * 1000).toFixed(3)} g/mol` };
-      case 'volume': {
-        const density = s.declared?.density;
-        if (density === undefined) {
-          if (s.phase === 'g') {
-            const P = batch.pressure;
-            return { n: (P * a.value) / (R * T), from: `${formatQuantity(a.value, 'volume')} of ideal gas at the batch T and ${formatQuantity(P, 'pressure')}` };
-          }
-          out.push(
-            diagnostic(
-              'missing-data',
-              `a volume of \`${name}\` needs its density: add \`density … g/mL\` under ${s.declared ? `\`species ${s.declared.name}\`` : `a \`species\` declaration for ${name}`}`,
-              where.start,
-              where.end,
-            ),
-          );
-          return undefined;
-        }
-        return {
-          n: (a.value * density * purity) / M,
-          from: `${formatQuantity(a.value, 'volume')} × ${formatQuantity(density, 'density')}${purityNote} ÷ ${(M * 1000).toFixed(3)} g/mol`,
-        };
-      }
-      case 'concentration':
-        if (batch.volume === undefined) {
-          out.push(diagnostic('missing-data', `a concentration of \`${name}\` needs the liquid volume: add \`volume … mL\` to this batch`, where.start, where.end));
-          return undefined;
-        }
-        return { n: a.value * batch.volume, from: `${formatQuantity(a.value, 'concentration')} × ${formatQuantity(batch.volume, 'volume')}` };
-      case 'pressure':
-        if (gasVolume === undefined) {
-          out.push(diagnostic('missing-data', `a partial pressure of \`${name}\` needs a closed vessel: add \`vessel … L\` to this batch (or give mol)`, where.start, where.end));
-          return undefined;
-        }
-        if (s.phase !== 'g') {
-          out.push(diagnostic('missing-data', `a partial pressure is for a gas; \`${name}\` is not declared as (g)`, where.start, where.end));
-          return undefined;
-        }
-        return { n: (a.value * gasVolume) / (R * T), from: `${formatQuantity(a.value, 'pressure')} in ${formatQuantity(gasVolume, 'volume')} of gas space at the batch T` };
-      case 'equivalents':
-        return undefined; // after the basis
-      default:
-        return undefined;
-    }
-  };
+  const context: ChargeContext = { T, P: batch.pressure, volume: batch.volume, gasVolume };
   for (const a of batch.amounts) {
     if (a.dimension === 'equivalents') continue;
-    const m = toMoles(a);
+    const m = a.species && a.value !== undefined && a.dimension ? toMoles(a.species, a.node.species.text, a.value, a.dimension, a.node.value ?? a.node, context, out) : undefined;
     if (m) moles.set(a, m);
     else amountsOk = false; // unreadable or unconvertible: its line already says why
   }
@@ -163,38 +145,318 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
     moles.set(a, { n: a.value * base.n, from: `${a.value} × ${Number(base.n.toPrecision(4))} mol of ${basisAmount!.node.species.text}` });
   }
 
-  // ---- species and reactions ---------------------------------------------------------------
-  const species: BatchSpeciesDraft[] = [];
-  const index = new Map<string, number>();
-  const add = (s: ResolvedSpecies, label: string, anchor: { start: number; end: number }): number => {
-    const id = speciesIdentity(s);
-    let i = index.get(id);
-    if (i === undefined) {
-      i = species.length;
-      index.set(id, i);
-      species.push({ id, label, species: s, charged: 0, anchor });
-    }
-    return i;
-  };
+  const contents = new Contents();
   for (const a of batch.amounts) {
     if (!a.species || a.value === undefined) continue; // a line without a readable amount has its own error
-    const i = add(a.species, a.node.species.text, a.node.species);
+    const i = contents.add(a.species, a.node.species.text, a.node.species);
     const m = moles.get(a);
     if (m) {
-      species[i].charged = m.n;
-      species[i].chargedFrom = m.from;
+      contents.drafts[i].charged = m.n;
+      contents.drafts[i].chargedFrom = m.from;
     }
   }
+  const basisIndex = basisAmount?.species ? contents.index.get(speciesIdentity(basisAmount.species)) : undefined;
+  return finishInputs(batch, model, contents, { T, P: batch.pressure, volume: batch.volume, gasVolume, vessel: batch.vessel }, basisIndex, undefined, amountsOk, out);
+}
+
+/** Temperature, pressure and volumes that amounts are converted at. */
+interface ChargeContext {
+  readonly T: number;
+  readonly P: number;
+  /** m^3 of liquid */
+  readonly volume?: number;
+  /** m^3 of gas space in a closed vessel */
+  readonly gasVolume?: number;
+}
+
+/** An amount in any form a batch accepts, in mol (with how it was worked out), or undefined with an error on `where`. */
+function toMoles(
+  s: ResolvedSpecies,
+  name: string,
+  value: number,
+  dimension: Dimension,
+  where: { start: number; end: number },
+  context: ChargeContext,
+  out: Diagnostic[],
+): { n: number; from?: string } | undefined {
+  const M = s.formula.molarMass / 1000; // kg/mol
+  const purity = s.declared?.purity ?? 1;
+  const purityNote = purity < 1 ? ` × ${formatQuantity(purity, 'percent')} purity` : '';
+  const { T } = context;
+  switch (dimension) {
+    case 'amount':
+      return { n: value };
+    case 'mass':
+      if (M <= 0) {
+        out.push(diagnostic('missing-data', `\`${name}\` has no molar mass, so a mass cannot be converted to moles`, where.start, where.end));
+        return undefined;
+      }
+      return { n: (value * purity) / M, from: `${formatQuantity(value, 'mass')}${purityNote} ÷ ${(M * 1000).toFixed(3)} g/mol` };
+    case 'volume': {
+      const density = s.declared?.density;
+      if (density === undefined) {
+        if (s.phase === 'g') {
+          const P = context.P;
+          return { n: (P * value) / (R * T), from: `${formatQuantity(value, 'volume')} of ideal gas at the batch T and ${formatQuantity(P, 'pressure')}` };
+        }
+        out.push(
+          diagnostic(
+            'missing-data',
+            `a volume of \`${name}\` needs its density: add \`density … g/mL\` under ${s.declared ? `\`species ${s.declared.name}\`` : `a \`species\` declaration for ${name}`}`,
+            where.start,
+            where.end,
+          ),
+        );
+        return undefined;
+      }
+      return {
+        n: (value * density * purity) / M,
+        from: `${formatQuantity(value, 'volume')} × ${formatQuantity(density, 'density')}${purityNote} ÷ ${(M * 1000).toFixed(3)} g/mol`,
+      };
+    }
+    case 'concentration':
+      if (context.volume === undefined) {
+        out.push(diagnostic('missing-data', `a concentration of \`${name}\` needs the liquid volume: add \`volume … mL\` to this batch`, where.start, where.end));
+        return undefined;
+      }
+      return { n: value * context.volume, from: `${formatQuantity(value, 'concentration')} × ${formatQuantity(context.volume, 'volume')}` };
+    case 'pressure':
+      if (context.gasVolume === undefined) {
+        out.push(diagnostic('missing-data', `a partial pressure of \`${name}\` needs a closed vessel: add \`vessel … L\` to this batch (or give mol)`, where.start, where.end));
+        return undefined;
+      }
+      if (s.phase !== 'g') {
+        out.push(diagnostic('missing-data', `a partial pressure is for a gas; \`${name}\` is not declared as (g)`, where.start, where.end));
+        return undefined;
+      }
+      return { n: (value * context.gasVolume) / (R * T), from: `${formatQuantity(value, 'pressure')} in ${formatQuantity(context.gasVolume, 'volume')} of gas space at the batch T` };
+    default:
+      return undefined;
+  }
+}
+
+/** The species of a batch as they are gathered: from amount lines, the source batch, or used reactions. */
+class Contents {
+  readonly drafts: BatchSpeciesDraft[] = [];
+  readonly index = new Map<string, number>();
+  add(s: ResolvedSpecies, label: string, anchor: { start: number; end: number }): number {
+    const id = speciesIdentity(s);
+    let i = this.index.get(id);
+    if (i === undefined) {
+      i = this.drafts.length;
+      this.index.set(id, i);
+      this.drafts.push({ id, label, species: s, charged: 0, anchor });
+    }
+    return i;
+  }
+}
+
+interface Conditions {
+  readonly T: number;
+  readonly P: number;
+  readonly volume?: number;
+  readonly gasVolume?: number;
+  readonly vessel?: number;
+}
+
+/**
+ * A follow-on batch: its source's equilibrium contents (and vessel, volume, temperature and
+ * pressure unless this batch gives its own), then each operation line in order.
+ */
+function followOnInputs(batch: BatchModel, model: NotebookModel, source: SourceState | undefined, out: Diagnostic[]): BatchInputResult {
+  const where = batch.node.source ?? batch.node.name ?? batch.node.keyword;
+  if (!source || !source.converged) {
+    // An unknown source or a loop has its own error on this name; a source with errors of its own says why there.
+    if (source && !source.converged) {
+      out.push(diagnostic('missing-data', `\`${batch.source}\` has no equilibrium answer (see its error), so this batch cannot start from it`, where.start, where.end));
+    }
+    return { diagnostics: out };
+  }
+  const src = source.inputs;
+  const T = batch.temperature ?? src.temperature;
+  const sourceP = src.conditions.kind === 'constant-pressure' ? src.conditions.P : STANDARD_ATMOSPHERE;
+  const P = batch.pressureIsDefault ? sourceP : batch.pressure;
+  const vessel = batch.vessel ?? src.vessel;
+  const volume = batch.volume ?? src.liquidVolume;
+  const gasVolume = vessel !== undefined ? vessel - (volume ?? 0) : undefined;
+  if (gasVolume !== undefined && gasVolume <= 0) {
+    out.push(diagnostic('bad-quantity', 'the liquid volume must be less than the vessel volume, leaving room for the gas', where.start, where.end));
+    return { diagnostics: out };
+  }
+  const contents = new Contents();
+  src.species.forEach((sp, i) => {
+    const k = contents.add(sp.species, sp.label, where);
+    contents.drafts[k].charged = source.equilibrium[i];
+  });
+  const before = source.equilibrium.slice();
+  const basisId = batch.basis ?? (src.basis !== undefined ? src.species[src.basis].id : undefined);
+  let basisIndex: number | undefined;
+  if (batch.basis !== undefined) {
+    basisIndex = contents.drafts.findIndex((d) => d.label === batch.basis || d.id === batch.basis);
+    const line = batch.node.properties.find((p) => p.type === 'property' && p.keyText === 'basis');
+    if (basisIndex < 0) {
+      const at = line && line.type === 'property' && line.names[0] ? line.names[0] : where;
+      out.push(diagnostic('bad-basis', `the basis \`${batch.basis}\` must be one of the species this batch starts with or adds`, at.start, at.end));
+      basisIndex = undefined;
+    }
+  } else if (basisId !== undefined) basisIndex = contents.index.get(basisId);
+  // Conversion over the whole chain: what was fed in and what was taken out.
+  const inherited = batch.basis === undefined && src.basis !== undefined;
+  let fed = inherited ? (src.basisFed ?? src.species[src.basis!].charged) : basisIndex !== undefined ? contents.drafts[basisIndex].charged : 0;
+  let withdrawn = inherited ? (src.basisWithdrawn ?? 0) : 0;
+  const equivBase = src.basis !== undefined ? (src.basisFed ?? src.species[src.basis].charged) : undefined;
+  const context: ChargeContext = { T, P, volume, gasVolume };
+  const steps: FollowOnStep[] = [];
+  let ok = true;
+  for (const op of batch.operations) {
+    const lineText = textOf(op.node).trim();
+    if (op.operation === 'vent') {
+      if (gasVolume === undefined) {
+        out.push(diagnostic('bad-operation', '`vent` lets down the gas of a closed vessel: this batch (and its source) has no `vessel`', op.node.keyword.start, op.node.keyword.end));
+        ok = false;
+        continue;
+      }
+      const to = op.value ?? STANDARD_ATMOSPHERE;
+      let gas = 0;
+      contents.drafts.forEach((d) => {
+        if (d.species.phase === 'g') gas += d.charged;
+      });
+      const pressure = (gas * R * T) / gasVolume;
+      if (pressure <= to) {
+        steps.push({ text: lineText, changes: [], vent: { from: pressure, to: pressure, released: 0 }, note: `the gas is already at ${formatQuantity(pressure, 'pressure')}, not above ${formatQuantity(to, 'pressure')}: nothing is let out` });
+        continue;
+      }
+      const keep = to / pressure;
+      const changes: { index: number; mol: number }[] = [];
+      contents.drafts.forEach((d, i) => {
+        if (d.species.phase !== 'g' || d.charged <= 0) return;
+        const after = d.charged * keep;
+        changes.push({ index: i, mol: after - d.charged });
+        if (i === basisIndex) withdrawn += d.charged - after;
+        d.charged = after;
+      });
+      steps.push({ text: lineText, changes, vent: { from: pressure, to, released: gas * (1 - keep) } });
+      continue;
+    }
+    const s = op.species;
+    if (!s || op.value === undefined || !op.dimension || !op.node.species) {
+      ok = false; // its line already says what is wrong
+      continue;
+    }
+    const name = op.node.species.text;
+    const at = op.node.value ?? op.node;
+    if (op.operation === 'add') {
+      let m: { n: number; from?: string } | undefined;
+      if (op.dimension === 'equivalents') {
+        if (equivBase === undefined) {
+          out.push(diagnostic('bad-basis', '`equiv` is relative to the basis of the first batch of the chain, which has none', at.start, at.end));
+          ok = false;
+          continue;
+        }
+        m = { n: op.value * equivBase, from: `${op.value} × ${Number(equivBase.toPrecision(4))} mol of the first batch's basis` };
+      } else m = toMoles(s, name, op.value, op.dimension, at, context, out);
+      if (!m) {
+        ok = false;
+        continue;
+      }
+      const i = contents.add(s, name, op.node.species);
+      contents.drafts[i].charged += m.n;
+      if (i === basisIndex) fed += m.n;
+      steps.push({ text: lineText, changes: [{ index: i, mol: m.n }], note: m.from });
+      continue;
+    }
+    // remove
+    const i = contents.index.get(speciesIdentity(s));
+    const present = i !== undefined ? contents.drafts[i].charged : 0;
+    let mol: number;
+    if (op.dimension === 'percent') mol = present * op.value;
+    else {
+      const m = toMoles(s, name, op.value, op.dimension, at, context, out);
+      if (!m) {
+        ok = false;
+        continue;
+      }
+      mol = m.n;
+      // Taking out what is there, to rounding, is taking it all.
+      if (mol > present && mol <= present * (1 + REMOVE_ROUNDING)) mol = present;
+      if (mol > present) {
+        out.push(
+          diagnostic(
+            'bad-operation',
+            `only ${Number(present.toPrecision(4))} mol of \`${name}\` is there at this point, so ${Number(mol.toPrecision(4))} mol cannot be removed (give a smaller amount or a percentage)`,
+            at.start,
+            at.end,
+          ),
+        );
+        ok = false;
+        continue;
+      }
+    }
+    if (i === undefined) {
+      steps.push({ text: lineText, changes: [], note: `there is no \`${name}\` at this point: nothing is removed` });
+      continue;
+    }
+    const after = op.dimension === 'percent' && op.value === 1 ? 0 : Math.max(0, present - mol);
+    contents.drafts[i].charged = after;
+    if (i === basisIndex) withdrawn += present - after;
+    steps.push({ text: lineText, changes: [{ index: i, mol: after - present }] });
+  }
+  return finishInputs(
+    batch,
+    model,
+    contents,
+    { T, P, volume, gasVolume, vessel },
+    basisIndex,
+    {
+      fed,
+      withdrawn,
+      from: { source: source.name, before, steps },
+      reactions: batch.uses === undefined && src.selection === 'uses' ? [...src.oneWay, ...src.reversible].map((r) => r.reaction) : undefined,
+    },
+    ok,
+    out,
+  );
+}
+
+/** Removing up to this fraction more than is there (rounding in a converted amount) removes it all. */
+const REMOVE_ROUNDING = 1e-12;
+
+/** The source text of a node (from its tokens), without its line break or note. */
+function textOf(node: SyntaxElement): string {
+  let out = '';
+  forEachToken(node, (t) => {
+    if (t.kind !== 'newline' && t.kind !== 'comment') out += t.text;
+  });
+  return out;
+}
+
+function finishInputs(
+  batch: BatchModel,
+  model: NotebookModel,
+  contents: Contents,
+  conditions: Conditions,
+  basisIndex: number | undefined,
+  followOn: { fed: number; withdrawn: number; from: FollowOn; reactions?: readonly ReactionModel[] } | undefined,
+  amountsOk: boolean,
+  out: Diagnostic[],
+): BatchInputResult {
+  const header = batch.node.name ?? batch.node.keyword;
+  const { T, volume, gasVolume } = conditions;
+  const species = contents.drafts;
+  const index = contents.index;
+  const add = (s: ResolvedSpecies, label: string, anchor: { start: number; end: number }): number => contents.add(s, label, anchor);
+  // ---- species and reactions ---------------------------------------------------------------
   const available = new Set<string>();
   for (const s of species) if (s.charged > 0) available.add(s.id);
 
-  const candidates = batch.uses ?? model.reactions;
-  const selection: BatchInputs['selection'] = batch.uses ? 'uses' : 'automatic';
+  const given = batch.uses ?? followOn?.reactions;
+  const candidates = given ?? model.reactions;
+  const selection: BatchInputs['selection'] = given ? 'uses' : 'automatic';
   const sideAvailable = (r: ReactionModel, side: 'left' | 'right'): boolean =>
     r.terms.filter((t) => t.side === side).every((t) => t.species !== undefined && (available.has(speciesIdentity(t.species)) || t.species.formula.isElectron));
   const chosen: ReactionModel[] = [];
-  if (batch.uses) {
-    for (const r of batch.uses) chosen.push(r);
+  if (given) {
+    for (const r of given) chosen.push(r);
   } else {
     // Closure: a reaction runs when all species on one side are available; what it forms
     // becomes available to the others. One-way reactions need their left side.
@@ -252,10 +514,10 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
     );
   }
   const hasSolute = species.some((s) => s.species.phase === 'aq');
-  if (hasSolute && batch.volume === undefined) {
+  if (hasSolute && volume === undefined) {
     out.push(diagnostic('missing-data', 'this batch has dissolved (aq) species: add `volume … mL` (the liquid volume) so their concentrations are known', header.start, header.end));
   }
-  if (!amountsOk || !reactionsOk || phaseless.length > 0 || (hasSolute && batch.volume === undefined)) return { diagnostics: out };
+  if (!amountsOk || !reactionsOk || phaseless.length > 0 || (hasSolute && volume === undefined)) return { diagnostics: out };
 
   const finished: BatchSpecies[] = species.map(({ anchor: _anchor, ...s }) => ({
     ...s,
@@ -299,21 +561,26 @@ export function batchInputs(batch: BatchModel, model: NotebookModel): BatchInput
     reversible.push({ reaction: r, nu: nuOf(r), lnK: k.lnK, source: k.source, dH: enthalpyOf(r, T) });
   }
   if (!reactionsOk) return { diagnostics: out };
-  const basisIndex = basisAmount?.species ? index.get(speciesIdentity(basisAmount.species)) : undefined;
   const heat = heatCapacityOf(batch, finished);
+  const inputs: BatchInputs = {
+    species: finished,
+    oneWay,
+    reversible,
+    temperature: T,
+    conditions: gasVolume !== undefined ? { kind: 'constant-volume', gasVolume } : { kind: 'constant-pressure', P: conditions.P },
+    liquidVolume: volume,
+    basis: basisIndex,
+    selection,
+    heatCapacity: heat?.value,
+    heatCapacityFrom: heat?.from,
+    vessel: conditions.vessel,
+  };
+  if (!followOn) return { inputs, diagnostics: out };
+  // The source's species list comes first in the same order, so `before` lines up; species
+  // added here or brought in by reactions start from zero before the change.
+  const before = finished.map((_, i) => followOn.from.before[i] ?? 0);
   return {
-    inputs: {
-      species: finished,
-      oneWay,
-      reversible,
-      temperature: T,
-      conditions: gasVolume !== undefined ? { kind: 'constant-volume', gasVolume } : { kind: 'constant-pressure', P: batch.pressure },
-      liquidVolume: batch.volume,
-      basis: basisIndex,
-      selection,
-      heatCapacity: heat?.value,
-      heatCapacityFrom: heat?.from,
-    },
+    inputs: { ...inputs, basisFed: followOn.fed, basisWithdrawn: followOn.withdrawn, from: { ...followOn.from, before } },
     diagnostics: out,
   };
 }

@@ -139,10 +139,12 @@ export function solveBatch(inputs: BatchInputs, cache: SolveCache): BatchResult 
     inactive: result.inactiveReactions.includes(j),
   }));
   let conversion: number | undefined;
-  if (inputs.basis !== undefined && charged[inputs.basis] > 0) {
-    const consumed = charged[inputs.basis] - equilibrium[inputs.basis];
+  // Over a chain of follow-on batches the conversion is of everything fed in, less what was taken out.
+  const fed = inputs.basisFed ?? (inputs.basis !== undefined ? charged[inputs.basis] : 0);
+  if (inputs.basis !== undefined && fed > 0) {
+    const consumed = fed - (inputs.basisWithdrawn ?? 0) - equilibrium[inputs.basis];
     if (consumed > 0 || inputs.reversible.some((r) => r.nu[inputs.basis!] < 0) || inputs.oneWay.some((r) => r.nu[inputs.basis!] < 0)) {
-      conversion = consumed / charged[inputs.basis];
+      conversion = consumed / fed;
     }
   }
   const byStep: { label: string; released: number }[] = [];

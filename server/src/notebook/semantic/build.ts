@@ -5,7 +5,8 @@
 import { solveBalance, tallyBalance, type BalanceTerm } from '../../chem/balance';
 import { parseFormula, type Formula, type FormulaProblem } from '../../chem/formula';
 import { Rational } from '../../chem/rational';
-import { forEachToken, type FileNode, type SyntaxError, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
+import { forEachToken, type FileNode, type OperationNode, type SyntaxError, type PropertyLine, type PropertyNode, type Token, type TermNode } from '../syntax/tree';
+import type { Dimension } from '../../chem/units';
 import { IDENTIFIER, RESERVED_WORDS } from '../syntax/parser';
 import { diagnostic, type Diagnostic, type Fix } from './codes';
 import { balanceDiagnostics } from './balance-check';
@@ -14,6 +15,7 @@ import {
   STANDARD_ATMOSPHERE,
   type BatchAmount,
   type BatchModel,
+  type BatchOperation,
   type NotebookModel,
   type Phase,
   type ReactionModel,
@@ -74,6 +76,7 @@ class Builder {
     const batches: BatchModel[] = [];
     for (const s of this.tree.statements) if (s.type === 'batch') batches.push(this.batch(s, reactions));
     this.checkDuplicateBatches(batches);
+    this.checkSources(batches);
     return { species: this.species, speciesList: this.speciesList, reactions, batches, diagnostics: this.diagnostics };
   }
 
@@ -383,8 +386,30 @@ class Builder {
     }
     const amounts: BatchAmount[] = [];
     const seen = new Map<string, BatchAmount>();
+    const followOn = node.from !== undefined;
+    const operations: BatchOperation[] = [];
     for (const line of node.properties) {
+      if (line.type === 'operation') {
+        if (!followOn) {
+          const example = line.operation === 'vent' ? '' : '; in a batch of its own, list the amount as `SPECIES AMOUNT`';
+          this.report(diagnostic('bad-operation', `\`${line.operation}\` belongs to a follow-on batch (\`batch NAME from OTHER\`)${example}`, line.keyword.start, line.keyword.end));
+          continue;
+        }
+        operations.push(this.operation(line));
+        continue;
+      }
       if (line.type !== 'amount') continue;
+      if (followOn) {
+        this.report(
+          diagnostic(
+            'bad-operation',
+            `a follow-on batch starts from its source's contents: write \`add ${line.species.text} …\` to charge more (or \`remove ${line.species.text} …\`)`,
+            line.species.start,
+            line.species.end,
+          ),
+        );
+        continue;
+      }
       const species = this.resolveSpecies(line.species, line.phase);
       let value: number | undefined;
       let dimension: BatchAmount['dimension'];
@@ -416,7 +441,7 @@ class Builder {
       if (line.keyText === 'basis' && line.names[0] && basis === undefined) {
         const tok = line.names[0];
         basis = tok.text;
-        if (!amounts.some((a) => a.node.species.text === tok.text)) {
+        if (!followOn && !amounts.some((a) => a.node.species.text === tok.text)) {
           this.report(diagnostic('bad-basis', `the basis \`${tok.text}\` must be one of this batch's species with an amount`, tok.start, tok.end));
         }
       }
@@ -446,7 +471,58 @@ class Builder {
       basis,
       uses,
       heatCapacity: this.positive(props.values.get('heat capacity')?.[0], 'the heat capacity'),
+      source: node.source?.text,
+      operations,
     };
+  }
+
+  private operation(line: OperationNode): BatchOperation {
+    const species = line.species ? this.resolveSpecies(line.species, line.phase) : undefined;
+    if (!line.value) return { node: line, operation: line.operation, species };
+    const expected: Dimension[] =
+      line.operation === 'vent'
+        ? ['pressure']
+        : line.operation === 'add'
+          ? ['amount', 'mass', 'volume', 'equivalents', 'concentration', 'pressure']
+          : ['amount', 'mass', 'volume', 'percent'];
+    const what = line.operation === 'vent' ? 'the pressure to vent to' : `the amount of \`${line.species?.text ?? ''}\` to ${line.operation}`;
+    const q = readQuantity(line.value, expected, what);
+    for (const d of q.diagnostics) this.report(d);
+    if (q.value === undefined) return { node: line, operation: line.operation, species };
+    if (line.operation === 'vent' ? q.value <= 0 : q.value < 0) {
+      this.report(diagnostic('bad-quantity', line.operation === 'vent' ? 'the pressure to vent to must be positive' : 'an amount cannot be negative (0 is allowed)', line.value.start, line.value.end));
+      return { node: line, operation: line.operation, species };
+    }
+    if (q.dimension === 'percent' && q.value > 1) {
+      this.report(diagnostic('bad-quantity', 'at most 100 % of a species can be removed', line.value.start, line.value.end));
+      return { node: line, operation: line.operation, species };
+    }
+    return { node: line, operation: line.operation, species, value: q.value, dimension: q.dimension };
+  }
+
+  /** Follow-on batches: the source must exist, and chains must not loop. */
+  private checkSources(batches: readonly BatchModel[]): void {
+    const byName = new Map<string, BatchModel>();
+    for (const b of batches) if (b.node.name && !byName.has(b.name)) byName.set(b.name, b);
+    for (const b of batches) {
+      const tok = b.node.source;
+      if (!tok || b.source === undefined) continue;
+      if (!byName.has(b.source)) {
+        const names = [...byName.keys()].filter((n) => n !== b.name).map((n) => `\`${n}\``).join(', ');
+        this.report(diagnostic('unknown-batch', `no batch is named \`${b.source}\`${names ? `; batches in this notebook: ${names}` : ''}`, tok.start, tok.end));
+        continue;
+      }
+      const chain = [b.name];
+      let at: BatchModel | undefined = byName.get(b.source);
+      while (at) {
+        if (at === b || chain.includes(at.name)) {
+          this.report(diagnostic('batch-cycle', `follow-on batches cannot start from each other in a loop: ${[...chain, at.name].map((n) => `\`${n}\``).join(' ← ')}`, tok.start, tok.end));
+          break;
+        }
+        chain.push(at.name);
+        at = at.source !== undefined ? byName.get(at.source) : undefined;
+      }
+    }
   }
 
   private positive(p: PropertyValue | undefined, what: string): number | undefined {

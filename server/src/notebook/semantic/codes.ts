@@ -38,6 +38,9 @@ export const DIAGNOSTIC_CODES = {
   'gas-caution': { severity: 'warning', summary: 'a step that gives off gas inside a closed vessel' },
   'unknown-code': { severity: 'warning', summary: 'an `accept:` note names a code that does not exist' },
   'unused-accept': { severity: 'hint', summary: 'an `accept:` note that silences nothing on its line' },
+  'unknown-batch': { severity: 'error', summary: 'a follow-on batch starts `from` a batch that does not exist' },
+  'batch-cycle': { severity: 'error', summary: 'follow-on batches that start from each other in a loop' },
+  'bad-operation': { severity: 'error', summary: 'an `add`, `remove` or `vent` line that cannot be applied' },
   'unused-pressure': { severity: 'warning', summary: 'a batch pressure written for a closed vessel, where the pressure is computed instead' },
 } as const satisfies Record<string, { severity: Severity; summary: string }>;
 

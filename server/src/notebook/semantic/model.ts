@@ -7,7 +7,7 @@ import type { Formula } from '../../chem/formula';
 import type { Rational } from '../../chem/rational';
 import type { Dimension } from '../../chem/units';
 import type { FormationData, ReactionThermo } from '../../chem/thermo';
-import type { BatchNode, ReactionNode, SpeciesNode, TermNode, Token, AmountNode } from '../syntax/tree';
+import type { BatchNode, ReactionNode, SpeciesNode, TermNode, Token, AmountNode, OperationNode } from '../syntax/tree';
 import type { Diagnostic } from './codes';
 
 export type Phase = 'g' | 'l' | 's' | 'aq';
@@ -80,6 +80,19 @@ export interface BatchAmount {
   readonly dimension?: Dimension;
 }
 
+/** An operation line of a follow-on batch, read into SI. */
+export interface BatchOperation {
+  readonly node: OperationNode;
+  readonly operation: OperationNode['operation'];
+  readonly species?: ResolvedSpecies;
+  /**
+   * SI value in `dimension`: an amount of any form a batch accepts (add, remove), a fraction
+   * for a percentage (remove), Pa for `vent to`. Undefined when unreadable or absent (`vent`).
+   */
+  readonly value?: number;
+  readonly dimension?: Dimension;
+}
+
 export interface BatchModel {
   readonly node: BatchNode;
   readonly name: string;
@@ -98,6 +111,10 @@ export interface BatchModel {
   readonly uses?: readonly ReactionModel[];
   /** J/K, from `heat capacity`. */
   readonly heatCapacity?: number;
+  /** A follow-on batch: the name of the batch whose equilibrium contents it starts from. */
+  readonly source?: string;
+  /** A follow-on batch's operation lines, in order. */
+  readonly operations: readonly BatchOperation[];
 }
 
 export interface NotebookModel {

@@ -7,7 +7,7 @@ import { parseNumber, parseUnit, type Dimension } from '../../chem/units';
 import type { SweepNode } from '../syntax/tree';
 import { diagnostic, type Diagnostic } from './codes';
 import type { BatchAmount, BatchModel, NotebookModel } from './model';
-import { batchInputs, enthalpyOf, kAt, type BatchInputs, type ReversibleInput } from './batch-inputs';
+import { batchInputs, enthalpyOf, kAt, type BatchInputs, type ReversibleInput, type SourceState } from './batch-inputs';
 import { solveBatch, type BatchResult, type SolveCache } from './batch-results';
 
 /** Most points one sweep may have. */
@@ -137,7 +137,7 @@ export function variant(batch: BatchModel, sweep: { variable: SweepVariable; dim
 }
 
 /** Reads a batch's `vary` lines, and solves the batch at every point of each readable one. */
-export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: SolveCache): { sweeps: SweepResult[]; diagnostics: Diagnostic[] } {
+export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: SolveCache, source?: SourceState): { sweeps: SweepResult[]; diagnostics: Diagnostic[] } {
   const diagnostics: Diagnostic[] = [];
   const sweeps: SweepModel[] = [];
   for (const line of batch.node.properties) {
@@ -146,7 +146,7 @@ export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: Solv
     diagnostics.push(...r.diagnostics);
     if (r.sweep) sweeps.push(r.sweep);
   }
-  return { sweeps: solveSweeps(batch, sweeps, model, cache), diagnostics };
+  return { sweeps: solveSweeps(batch, sweeps, model, cache, source), diagnostics };
 }
 
 /**
@@ -155,7 +155,15 @@ export function batchSweeps(batch: BatchModel, model: NotebookModel, cache: Solv
  * in mol), so a long sweep does not redo the whole batch reading at every point. Other amount
  * units (mass, equiv, ...) go through the full reading, since they feed into other amounts.
  */
-export function pointInputs(base: BatchInputs, batch: BatchModel, variable: SweepVariable, dimension: Dimension, value: number, model: NotebookModel): BatchInputs | undefined {
+export function pointInputs(
+  base: BatchInputs,
+  batch: BatchModel,
+  variable: SweepVariable,
+  dimension: Dimension,
+  value: number,
+  model: NotebookModel,
+  source?: SourceState,
+): BatchInputs | undefined {
   switch (variable.kind) {
     case 'temperature': {
       const reversible: ReversibleInput[] = [];
@@ -168,28 +176,28 @@ export function pointInputs(base: BatchInputs, batch: BatchModel, variable: Swee
       return { ...base, temperature: value, reversible, oneWay };
     }
     case 'pressure':
-      return base.conditions.kind === 'constant-pressure' ? { ...base, conditions: { kind: 'constant-pressure', P: value } } : batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+      return base.conditions.kind === 'constant-pressure' ? { ...base, conditions: { kind: 'constant-pressure', P: value } } : batchInputs(variant(batch, { variable, dimension }, value), model, source).inputs;
     case 'vessel':
       return base.conditions.kind === 'constant-volume' && batch.volume === undefined
         ? { ...base, conditions: { kind: 'constant-volume', gasVolume: value } }
-        : batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+        : batchInputs(variant(batch, { variable, dimension }, value), model, source).inputs;
     case 'amount': {
       const label = variable.amount.node.species.text;
       const i = base.species.findIndex((s) => s.label === label);
       const isBasis = base.basis === i;
-      if (dimension !== 'amount' || i < 0 || isBasis) return batchInputs(variant(batch, { variable, dimension }, value), model).inputs;
+      if (dimension !== 'amount' || i < 0 || isBasis) return batchInputs(variant(batch, { variable, dimension }, value), model, source).inputs;
       return { ...base, species: base.species.map((s, k) => (k === i ? { ...s, charged: value, chargedFrom: undefined } : s)) };
     }
   }
 }
 
 /** Solves the batch at every point of each sweep. */
-export function solveSweeps(batch: BatchModel, sweeps: readonly SweepModel[], model: NotebookModel, cache: SolveCache): SweepResult[] {
-  const base = batchInputs(batch, model).inputs;
+export function solveSweeps(batch: BatchModel, sweeps: readonly SweepModel[], model: NotebookModel, cache: SolveCache, source?: SourceState): SweepResult[] {
+  const base = batchInputs(batch, model, source).inputs;
   return sweeps.map((sweep) => ({
     sweep,
     points: sweep.values.map((value, i) => {
-      const inputs = base ? pointInputs(base, batch, sweep.variable, sweep.dimension, value, model) : undefined;
+      const inputs = base ? pointInputs(base, batch, sweep.variable, sweep.dimension, value, model, source) : undefined;
       return { written: sweep.written[i], result: inputs ? solveBatch(inputs, cache) : undefined };
     }),
   }));

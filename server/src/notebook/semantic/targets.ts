@@ -8,7 +8,7 @@ import { parseNumber, parseUnit, type Dimension } from '../../chem/units';
 import type { TargetNode } from '../syntax/tree';
 import { diagnostic, type Diagnostic } from './codes';
 import type { BatchModel, NotebookModel } from './model';
-import { batchInputs } from './batch-inputs';
+import { batchInputs, type SourceState } from './batch-inputs';
 import { solveBatch, type BatchResult, type SolveCache } from './batch-results';
 import { readQuantity } from './properties';
 import { pointInputs, resolveVariable, type SweepVariable } from './sweeps';
@@ -61,13 +61,13 @@ function quantityOf(t: TargetModel, r: BatchResult): number | undefined {
   return y && y.theoretical > start ? (y.formed - start) / (y.theoretical - start) : undefined;
 }
 
-export function batchTargets(batch: BatchModel, model: NotebookModel, cache: SolveCache): { targets: TargetResult[]; diagnostics: Diagnostic[] } {
+export function batchTargets(batch: BatchModel, model: NotebookModel, cache: SolveCache, source?: SourceState): { targets: TargetResult[]; diagnostics: Diagnostic[] } {
   const diagnostics: Diagnostic[] = [];
   const targets: TargetResult[] = [];
   for (const line of batch.node.properties) {
     if (line.type !== 'target') continue;
     const t = readTarget(line, batch, diagnostics);
-    if (t) targets.push(solveTarget(t, batch, model, cache));
+    if (t) targets.push(solveTarget(t, batch, model, cache, source));
   }
   return { targets, diagnostics };
 }
@@ -155,10 +155,10 @@ function ownValue(batch: BatchModel, variable: SweepVariable): { value: number; 
   }
 }
 
-function solveTarget(t: TargetModel, batch: BatchModel, model: NotebookModel, cache: SolveCache): TargetResult {
-  const base = batchInputs(batch, model).inputs;
+function solveTarget(t: TargetModel, batch: BatchModel, model: NotebookModel, cache: SolveCache, source?: SourceState): TargetResult {
+  const base = batchInputs(batch, model, source).inputs;
   const at = (x: number): { result?: BatchResult; q?: number } => {
-    const inputs = base ? pointInputs(base, batch, t.variable, t.dimension, t.toSI(x), model) : undefined;
+    const inputs = base ? pointInputs(base, batch, t.variable, t.dimension, t.toSI(x), model, source) : undefined;
     if (!inputs) return {};
     const result = solveBatch(inputs, cache);
     return { result, q: quantityOf(t, result) };

@@ -17,6 +17,7 @@ import type {
   AmountNode,
   BatchNode,
   ErrorLineNode,
+  OperationNode,
   FileNode,
   ParseResult,
   PropertyLine,
@@ -40,11 +41,13 @@ const BYTE_ORDER_MARK = 0xfeff;
 
 export const STATEMENT_KEYWORDS = ['species', 'batch'] as const;
 /** Batch property keywords; any other first word on a batch line names a species amount. */
-export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target'] as const;
+export const BATCH_KEYWORDS = ['vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target', 'add', 'remove', 'vent'] as const;
+/** Operation lines of a follow-on batch (`batch B from A`). */
+export const OPERATION_KEYWORDS = ['add', 'remove', 'vent'] as const;
 /** Property keys written as two words: the first word, and the word that must follow it. */
 const TWO_WORD_KEYS: Readonly<Record<string, string>> = { log: 'K', heat: 'capacity' };
 /** Words that cannot be species names: they would read as statement or batch keywords. */
-export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target']);
+export const RESERVED_WORDS: ReadonlySet<string> = new Set<string>(['species', 'batch', 'at', 'from', 'vessel', 'volume', 'basis', 'uses', 'heat', 'vary', 'target', 'add', 'remove', 'vent']);
 /** Property keys whose value is a comma-separated list of names rather than a quantity. */
 export const NAME_LIST_KEYS: ReadonlySet<string> = new Set(['basis', 'uses']);
 
@@ -302,9 +305,12 @@ class Parser {
     let at: Token | undefined;
     let temperature: QuantityNode | undefined;
     let pressure: QuantityNode | undefined;
+    let from: Token | undefined;
+    let source: Token | undefined;
     const words = wordsIn(text, pos, ce);
     const atIndex = words.findIndex((w) => w.text === 'at');
-    const nameWord = atIndex === 0 ? undefined : words[0];
+    const nameWord = atIndex === 0 || words[0]?.text === 'from' ? undefined : words[0];
+    const fromIndex = words.findIndex((w, k) => w.text === 'from' && (atIndex < 0 || k < atIndex));
     if (!nameWord) {
       this.error('expected a batch name after `batch`, as in `batch trial-1 at 25 °C`', keyword.start, keyword.end);
     } else {
@@ -322,7 +328,35 @@ class Parser {
       }
       pos = nameWord.end;
     }
-    if (atIndex < 0) {
+    if (fromIndex >= 0) {
+      // A follow-on batch: `from SOURCE`, then an optional `at T[, P]`.
+      if (fromIndex > 1) {
+        const junk = words[nameWord ? 1 : 0];
+        this.error('a batch name has no spaces; expected `from` after it', junk.start, words[fromIndex - 1].end);
+        items.push(token(text, 'error', junk.start, words[fromIndex - 1].end));
+      }
+      const fromWord = words[fromIndex];
+      from = token(text, 'keyword', fromWord.start, fromWord.end);
+      items.push(from);
+      const sourceWord = words[fromIndex + 1];
+      const m = sourceWord && sourceWord.text !== 'at' ? LABEL_NAME.exec(sourceWord.text) : null;
+      if (sourceWord && m && m[0].length === sourceWord.text.length) {
+        source = token(text, 'name', sourceWord.start, sourceWord.end);
+        items.push(source);
+      } else {
+        this.error('expected the name of the batch to start from after `from`, as in `batch dried from trial-1`', from.start, sourceWord && sourceWord.text !== 'at' ? sourceWord.end : from.end);
+        if (sourceWord && sourceWord.text !== 'at') items.push(token(text, 'error', sourceWord.start, sourceWord.end));
+      }
+      const extraEnd = atIndex >= 0 ? atIndex : words.length;
+      if (fromIndex + 2 < extraEnd) {
+        const junk = words[fromIndex + 2];
+        this.error('expected `at` and a temperature (or nothing) after the source batch', junk.start, words[extraEnd - 1].end);
+        items.push(token(text, 'error', junk.start, words[extraEnd - 1].end));
+      }
+    }
+    if (atIndex < 0 && fromIndex >= 0) {
+      // No `at`: the follow-on keeps its source's temperature and pressure.
+    } else if (atIndex < 0) {
       const after = words[nameWord ? 1 : 0];
       this.error(
         'expected `at` and a temperature after the batch name, as in `batch trial-1 at 25 °C, 1 atm`',
@@ -331,7 +365,7 @@ class Parser {
       );
       if (after) items.push(token(text, 'error', after.start, ce));
     } else {
-      if (atIndex > 1) {
+      if (atIndex > 1 && fromIndex < 0) {
         const junk = words[1];
         this.error('a batch name has no spaces; expected `at` after it', junk.start, words[atIndex - 1].end);
         items.push(token(text, 'error', junk.start, words[atIndex - 1].end));
@@ -369,6 +403,8 @@ class Parser {
         children,
         keyword,
         name,
+        from,
+        source,
         at,
         temperature,
         pressure,
@@ -550,6 +586,7 @@ class Parser {
     }
     if (context === 'batch' && keyWord === 'vary' && first.text === 'vary') return this.sweepLine(words);
     if (context === 'batch' && keyWord === 'target' && first.text === 'target') return this.targetLine(words, ce);
+    if (context === 'batch' && (OPERATION_KEYWORDS as readonly string[]).includes(first.text)) return this.operationLine(words, ce);
     const key: Token[] = [];
     const second = TWO_WORD_KEYS[keyWord];
     if (second !== undefined && words[1]?.text.startsWith(second)) {
@@ -801,6 +838,59 @@ class Parser {
       }
     }
     return { children: items, build };
+  }
+
+  /** `add SPECIES AMOUNT`, `remove SPECIES AMOUNT|PERCENT`, `vent [to PRESSURE]`. */
+  private operationLine(words: Word[], ce: number): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
+    const { text } = this;
+    const keyword = token(text, 'keyword', words[0].start, words[0].end);
+    const operation = keyword.text as OperationNode['operation'];
+    const items: SyntaxElement[] = [keyword];
+    let species: Token | undefined;
+    let phase: Token | undefined;
+    let value: QuantityNode | undefined;
+    let to: Token | undefined;
+    if (operation === 'vent') {
+      if (words[1]?.text === 'to') {
+        to = token(text, 'keyword', words[1].start, words[1].end);
+        items.push(to);
+        value = this.quantity(words[1].end, ce, 'a pressure after `vent to`, as in `vent to 2 bar`', to);
+        if (value) items.push(value);
+      } else if (words[1]) {
+        this.error('expected `vent` alone (down to 1 atm) or `vent to PRESSURE`', words[1].start, ce);
+        items.push(token(text, 'error', words[1].start, ce));
+      }
+    } else if (!words[1]) {
+      this.error(`expected a species and an amount after \`${operation}\`, as in \`${operation} H2O ${operation === 'add' ? '0.5 mol' : '90 %'}\``, keyword.start, keyword.end);
+    } else {
+      const split = splitPhase(text, words[1]);
+      species = split.species;
+      items.push(species);
+      phase = split.phase;
+      let pos = words[1].end;
+      if (!phase && words[2] && PHASE_WORD.test(words[2].text)) {
+        phase = token(text, 'phase', words[2].start, words[2].end);
+        pos = words[2].end;
+      }
+      if (phase) items.push(phase);
+      value = this.quantity(pos, ce, `an amount after \`${species.text}\`, as in \`${operation} ${species.text} ${operation === 'add' ? '0.5 mol' : '90 %'}\``, species);
+      if (value) items.push(value);
+    }
+    return {
+      children: items,
+      build: (children): OperationNode => ({
+        type: 'operation',
+        start: children[0].start,
+        end: children[children.length - 1].end,
+        children,
+        keyword,
+        operation,
+        species,
+        phase,
+        value,
+        to,
+      }),
+    };
   }
 
   private amountLine(cs: number, ce: number, words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {

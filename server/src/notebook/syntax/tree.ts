@@ -109,7 +109,25 @@ export interface TargetNode extends NodeBase {
   readonly unit?: Token;
 }
 
-export type PropertyLine = PropertyNode | AmountNode | SweepNode | TargetNode | ErrorLineNode;
+/**
+ * An operation line of a follow-on batch, applied to the source batch's contents in order:
+ * `add SPECIES AMOUNT`, `remove SPECIES AMOUNT` (an amount or a percentage of what is there),
+ * `vent` or `vent to PRESSURE` (a closed vessel's gas let down to 1 atm or the given pressure).
+ */
+export interface OperationNode extends NodeBase {
+  readonly type: 'operation';
+  readonly keyword: Token;
+  /** 'add', 'remove' or 'vent' (the keyword's text). */
+  readonly operation: 'add' | 'remove' | 'vent';
+  readonly species?: Token;
+  readonly phase?: Token;
+  /** The amount added or removed, or the pressure after `vent to`. */
+  readonly value?: QuantityNode;
+  /** `to` of `vent to PRESSURE`. */
+  readonly to?: Token;
+}
+
+export type PropertyLine = PropertyNode | AmountNode | SweepNode | TargetNode | OperationNode | ErrorLineNode;
 
 /** `species NAME = FORMULA [(PHASE)]` with its property lines. */
 export interface SpeciesNode extends NodeBase {
@@ -133,11 +151,17 @@ export interface ReactionNode extends NodeBase {
   readonly properties: readonly PropertyLine[];
 }
 
-/** `batch NAME at TEMPERATURE[, PRESSURE]` with its amount and property lines. */
+/**
+ * `batch NAME at TEMPERATURE[, PRESSURE]` with its amount and property lines, or a follow-on
+ * batch `batch NAME from SOURCE [at TEMPERATURE[, PRESSURE]]` with its operation lines.
+ */
 export interface BatchNode extends NodeBase {
   readonly type: 'batch';
   readonly keyword: Token;
   readonly name?: Token;
+  /** `from` of a follow-on batch, and the name of the batch it starts from. */
+  readonly from?: Token;
+  readonly source?: Token;
   readonly at?: Token;
   readonly temperature?: QuantityNode;
   readonly pressure?: QuantityNode;
@@ -156,7 +180,7 @@ export interface FileNode extends NodeBase {
   readonly statements: readonly StatementNode[];
 }
 
-export type Node = FileNode | StatementNode | PropertyNode | AmountNode | SweepNode | TargetNode | TermNode | QuantityNode;
+export type Node = FileNode | StatementNode | PropertyNode | AmountNode | SweepNode | TargetNode | OperationNode | TermNode | QuantityNode;
 
 export interface SyntaxError {
   readonly code: 'syntax' | 'line-too-long';
