@@ -41,6 +41,7 @@ interface JsonReaction {
 }
 interface JsonBatch {
   name: string;
+  from: string | null;
   temperature_K: number | null;
   pressure_bar: number | null;
   vessel_L: number | null;
@@ -77,6 +78,8 @@ const GAS = [
   'batch roomy at 25 °C',
   '  vessel 100 L',
   '  A 1 mol',
+  'batch eased from shut',
+  '  vent',
   '',
 ].join('\n');
 
@@ -120,7 +123,8 @@ describe('solve --json', () => {
     const j = parse(r);
     expect(Object.keys(j).sort()).toEqual(['batches', 'file']);
     expect(j.file).toBe(file('gas.eqnb'));
-    expect(j.batches.map((b) => b.name)).toEqual(['open', 'shut', 'roomy']);
+    expect(j.batches.map((b) => b.name)).toEqual(['open', 'shut', 'roomy', 'eased']);
+    expect(j.batches.map((b) => b.from)).toEqual([null, null, null, 'shut']);
     for (const b of j.batches) {
       // a converged batch has no `message` key at all
       expect(Object.keys(b).sort()).toEqual(['adiabatic_rise_K', 'converged', 'from', 'heat_kJ', 'name', 'pressure_bar', 'reactions', 'species', 'sweeps', 'targets', 'temperature_K', 'vessel_L']);
@@ -155,6 +159,19 @@ describe('solve --json', () => {
     // closed form: K = (2ξ)²c/(1 − ξ), c = RT/(V P°)
     const c = (R * T25) / (0.01 * BAR);
     expectClose(shut.reactions[0].extent_mol, (-0.15 + Math.sqrt(0.15 ** 2 + 16 * c * 0.15)) / (8 * c), 1e-12, 'extent');
+  });
+
+  it('a follow-on batch: `from`, its source\'s temperature and vessel, initial_mol after the vent (ideal gas)', () => {
+    const j = parse(run('solve', file('gas.eqnb'), '--json'));
+    const [shut, eased] = [j.batches[1], j.batches[3]];
+    expect(eased.from).toBe('shut');
+    expect(eased.temperature_K).toBeCloseTo(T25, 10);
+    expect(eased.vessel_L).toBeCloseTo(10, 12);
+    // vent: every gas scaled by 1 atm / P, P = (Σn)RT/V before it (ideal gas; 1 atm = 101325 Pa by definition).
+    const keep = 101325 / ((shut.pressure_bar as number) * BAR);
+    shut.species.forEach((s, i) => expectClose(eased.species[i].initial_mol, s.equilibrium_mol * keep, 1e-12, `${s.name} after the vent`));
+    // Lower pressure, more dissociation (Le Chatelier): the extent is forward.
+    expect(eased.reactions[0].extent_mol).toBeGreaterThan(0);
   });
 
   it('--batch NAME selects one batch', () => {
@@ -222,7 +239,9 @@ describe('solve: human output', () => {
     expect(r.code).toBe(0);
     expect(r.out).toContain('Equilibrium / mol');
     const sections = r.out.split(/^== /m).filter((s) => s.trim() !== '');
-    expect(sections.map((s) => s.split('\n')[0])).toEqual(['batch open', 'batch shut', 'batch roomy']);
+    expect(sections.map((s) => s.split('\n')[0])).toEqual(['batch open', 'batch shut', 'batch roomy', 'batch eased']);
+    expect(sections[3]).toContain('Before change / mol');
+    expect(sections[3]).toMatch(/CAUTION: Venting lets out/);
     // closed form: the 10 L vessel reaches (1 + ξ)RT/V = 2.766 bar; the 100 L one 0.33 bar
     expect(sections[1]).toMatch(/CAUTION: The closed vessel reaches 2\.766 bar/);
     expect(sections[2]).not.toContain('CAUTION: The closed vessel');

@@ -113,6 +113,8 @@ describe('language server over stdio', () => {
       'batch trial-1 at 60 °C',
       '  acid 1.0 mol',
       '  EtOH 1.0 mol',
+      'batch dried from trial-1',
+      '  remove H2O 90 %',
       '',
     ].join('\n');
     const uri = 'file:///tmp/stillpoint-test/esterify.eqnb';
@@ -127,13 +129,22 @@ describe('language server over stdio', () => {
     expect(hover.contents.value).toMatch(/\| ester \| l \| 0 \| \+0\.6667 \| 0\.6667 \|/);
     expect(hover.contents.value).toContain('Conversion of acid: **66.7 %**');
     expect(hover.contents.value).toContain('not a process-safety assessment');
+    // The follow-on: 90 % of the water off, then (2/3 + y)(1/15 + y) = 4(1/3 − y)² gives y = 2/15
+    // and 80 % conversion over the chain (worked by hand in test/notebook/follow-on.test.ts).
+    const followOn = await client.request<{ contents: { value: string } }>('textDocument/hover', {
+      textDocument: { uri },
+      position: { line: 8, character: 8 },
+    });
+    expect(followOn.contents.value).toContain('Before change / mol');
+    expect(followOn.contents.value).toContain('Conversion of acid: **80.0 %**');
     const hints = await client.request<{ position: { line: number; character: number }; label: string }[]>('textDocument/inlayHint', {
       textDocument: { uri },
-      range: { start: { line: 0, character: 0 }, end: { line: 8, character: 0 } },
+      range: { start: { line: 0, character: 0 }, end: { line: 10, character: 0 } },
     });
-    expect(hints).toHaveLength(1);
+    expect(hints).toHaveLength(2);
     expect(hints[0].position).toEqual({ line: 5, character: 22 });
     expect(hints[0].label).toBe('⇒ 66.7 % conversion of acid');
+    expect(hints[1].label).toBe('⇒ 80.0 % conversion of acid');
     expect(await client.shutdown()).toBe(0);
   });
 

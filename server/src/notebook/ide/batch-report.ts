@@ -243,7 +243,7 @@ function solvedReport(title: string, conditions: string[], result: BatchResult):
   if (inputs.basis !== undefined && result.conversion !== undefined) {
     const label = inputs.species[inputs.basis].label;
     const chain = from
-      ? ` (of ${num(inputs.basisFed ?? 0)} mol fed over the chain from \`${from.source}\`${inputs.basisWithdrawn ? `, less ${num(inputs.basisWithdrawn)} mol taken out` : ''})`
+      ? ` (of ${num(inputs.basisFed ?? 0)} mol fed over the chain of batches${inputs.basisWithdrawn ? `, less ${num(inputs.basisWithdrawn)} mol taken out` : ''})`
       : '';
     summary.push(`Conversion of ${label}: **${percent(result.conversion)}**${chain}`);
     headline = `${percent(result.conversion)} conversion of ${label}`;
@@ -347,8 +347,8 @@ function followOnSummary(result: BatchResult, from: FollowOn, summary: string[],
     if (o.inactive || Number.isNaN(o.lnQ0)) continue;
     const K = Math.exp(o.input.lnK);
     const direction = directionOf(o.lnQ0, o.input.lnK);
-    const size = direction === 'at equilibrium' ? '' : `, by ${num(Math.abs(o.extent))} mol of reaction`;
-    summary.push(`Right after the change, \`${o.input.reaction.label}\` has Q = ${num(Math.exp(o.lnQ0))} against K = ${num(K)}: it shifts ${direction.replace(/^[→←] /, '')}${size}`);
+    const shift = direction === 'at equilibrium' ? 'it is at equilibrium already: no shift' : `it shifts ${direction.replace(/^[→←] /, '')}, by ${num(Math.abs(o.extent))} mol of reaction`;
+    summary.push(`Right after the change, \`${o.input.reaction.label}\` has Q = ${num(Math.exp(o.lnQ0))} against K = ${num(K)}: ${shift}`);
   }
 }
 

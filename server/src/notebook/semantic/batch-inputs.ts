@@ -338,7 +338,7 @@ function followOnInputs(batch: BatchModel, model: NotebookModel, source: SourceS
       steps.push({ text: lineText, changes, vent: { from: pressure, to, released: gas * (1 - keep) } });
       continue;
     }
-    const s = op.species;
+    const s = op.species ? sameSpecies(contents, op.species) : undefined;
     if (!s || op.value === undefined || !op.dimension || !op.node.species) {
       ok = false; // its line already says what is wrong
       continue;
@@ -416,6 +416,16 @@ function followOnInputs(batch: BatchModel, model: NotebookModel, source: SourceS
     ok,
     out,
   );
+}
+
+/**
+ * The species an operation line means: itself, or, for a bare formula written without a
+ * phase (`remove H2O 90 %`), the one species of the batch with that formula.
+ */
+function sameSpecies(contents: Contents, s: ResolvedSpecies): ResolvedSpecies {
+  if (s.declared || s.phase !== undefined || contents.index.has(speciesIdentity(s))) return s;
+  const matches = contents.drafts.filter((d) => !d.species.declared && d.species.key === s.key);
+  return matches.length === 1 ? matches[0].species : s;
 }
 
 /** Removing up to this fraction more than is there (rounding in a converted amount) removes it all. */
