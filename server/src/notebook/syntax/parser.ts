@@ -863,17 +863,11 @@ class Parser {
     } else if (!words[1]) {
       this.error(`expected a species and an amount after \`${operation}\`, as in \`${operation} H2O ${operation === 'add' ? '0.5 mol' : '90 %'}\``, keyword.start, keyword.end);
     } else {
-      const split = splitPhase(text, words[1]);
-      species = split.species;
-      items.push(species);
-      phase = split.phase;
-      let pos = words[1].end;
-      if (!phase && words[2] && PHASE_WORD.test(words[2].text)) {
-        phase = token(text, 'phase', words[2].start, words[2].end);
-        pos = words[2].end;
-      }
-      if (phase) items.push(phase);
-      value = this.quantity(pos, ce, `an amount after \`${species.text}\`, as in \`${operation} ${species.text} ${operation === 'add' ? '0.5 mol' : '90 %'}\``, species);
+      const named = speciesAndPhase(text, words[1], words[2]);
+      species = named.species;
+      phase = named.phase;
+      items.push(species, ...(phase ? [phase] : []));
+      value = this.quantity(named.end, ce, `an amount after \`${species.text}\`, as in \`${operation} ${species.text} ${operation === 'add' ? '0.5 mol' : '90 %'}\``, species);
       if (value) items.push(value);
     }
     return {
@@ -895,14 +889,10 @@ class Parser {
 
   private amountLine(cs: number, ce: number, words: Word[]): { children: SyntaxElement[]; build: (children: SyntaxElement[], line: Line) => PropertyLine } {
     const { text } = this;
-    const split = splitPhase(text, words[0]);
+    const split = speciesAndPhase(text, words[0], words[1]);
     const items: SyntaxElement[] = [split.species];
-    let phase = split.phase;
-    let pos = words[0].end;
-    if (!phase && words[1] && PHASE_WORD.test(words[1].text)) {
-      phase = token(text, 'phase', words[1].start, words[1].end);
-      pos = words[1].end;
-    }
+    const phase = split.phase;
+    const pos = split.end;
     if (phase) items.push(phase);
     const value = this.quantity(pos, ce, `an amount after \`${split.species.text}\`, as in \`${split.species.text} 1.0 mol\` (or a batch keyword: vessel, volume, basis, uses, heat capacity)`, split.species);
     if (value) items.push(value);
@@ -973,6 +963,13 @@ function skipBlank(text: string, pos: number, end: number): number {
 }
 
 /** Splits a trailing `(g)`-like phase off a word: `H2O(l)` -> `H2O`, `(l)`. */
+/** A species word with its phase, glued (`H2O(l)`) or as the next word (`H2O (l)`), and where they end. */
+function speciesAndPhase(text: string, word: Word, next: Word | undefined): { species: Token; phase?: Token; end: number } {
+  const split = splitPhase(text, word);
+  if (split.phase || !next || !PHASE_WORD.test(next.text)) return { ...split, end: word.end };
+  return { species: split.species, phase: token(text, 'phase', next.start, next.end), end: next.end };
+}
+
 function splitPhase(text: string, word: Word): { species: Token; phase?: Token } {
   const m = PHASE_SUFFIX.exec(word.text);
   if (m && m.index > 0) {
