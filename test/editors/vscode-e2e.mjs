@@ -3,7 +3,8 @@
 // copy of examples/with-mistakes/step4-draft.eqnb in headless Debian Chromium (driven by playwright-core)
 // and checks, as a user would see it: the language mode, the Stillpoint status bar summary, the squiggle
 // and the Problems entry, the balance quick fix, the batch hover with its equilibrium table, the inlay
-// hint on a batch header, and that a killed language server is restarted (with its message) and answers.
+// hint on a batch header, that a killed language server is restarted (with its message) and answers, and
+// that the chart code lens of a second notebook opens its SVG chart in a webview with a strict CSP.
 //   node test/editors/vscode-e2e.mjs          (after npm run package and test/editors/setup.sh)
 // Screenshots, code-server's output and VS Code's logs (extension host included) go to artifacts/editors/.
 // Exits non-zero, naming each failed step, when any step fails or the language server does not start.
@@ -27,6 +28,10 @@ const CS_ENTRY = path.join(tools, 'code-server/node_modules/code-server/out/node
 const CHROMIUM = '/usr/bin/chromium';
 const NOTEBOOK = path.join(root, 'examples/with-mistakes/step4-draft.eqnb');
 const FILE_NAME = 'step4-draft.eqnb';
+/** A second notebook, with a `vary` line, for the chart webview. */
+const CHART_NOTEBOOK = path.join(root, 'examples/autoclave-synthesis.eqnb');
+const CHART_FILE_NAME = 'autoclave-synthesis.eqnb';
+const VARY_LINE = 'vary T from 350 to 500 °C step 25';
 const ARTIFACTS = path.join(root, 'artifacts/editors');
 const STEP_TIMEOUT = Number(process.env.STEP_TIMEOUT_MS ?? 30_000);
 /** The whole run may take at most this long (ms); a normal run takes well under a minute. */
@@ -69,6 +74,7 @@ const dirs = Object.fromEntries(
 );
 Object.values(dirs).forEach((d) => mkdirSync(d, { recursive: true }));
 copyFileSync(NOTEBOOK, path.join(dirs.workspace, FILE_NAME));
+copyFileSync(CHART_NOTEBOOK, path.join(dirs.workspace, CHART_FILE_NAME));
 const configFile = path.join(run, 'config.yaml');
 writeFileSync(configFile, 'bind-addr: 127.0.0.1:0\nauth: none\ncert: false\n');
 mkdirSync(path.join(dirs['user-data'], 'User'), { recursive: true });
@@ -621,6 +627,50 @@ try {
     summary.hover_after_restart = text.slice(0, 300);
     mark('hover_after_restart');
     return `server pid ${old.pid} killed, pid ${fresh.pid} started ${summary.server_restarted.ms_after_kill} ms later; ${await screenshot('vscode-6-server-restarted.png')}`;
+  });
+
+  await step('7. the chart code lens above a `vary` line opens the SVG chart in a webview with a strict CSP', false, async () => {
+    await page.keyboard.press('Escape');
+    const entry = page.locator('.explorer-folders-view .monaco-list-row', { hasText: CHART_FILE_NAME });
+    await entry.click();
+    await viewLine(VARY_LINE).waitFor({ timeout: STEP_TIMEOUT });
+    const lens = page.locator('.monaco-editor .codelens-decoration a', { hasText: 'show equilibrium chart' }).first();
+    await lens.waitFor({ timeout: STEP_TIMEOUT }).catch(() => {
+      throw new Error('no "show equilibrium chart" code lens above the vary line');
+    });
+    await lens.click();
+    // The webview's document is a frame inside VS Code's webview host frame: find the one with our SVG.
+    const deadline = Date.now() + STEP_TIMEOUT;
+    let found;
+    while (!found) {
+      for (const frame of page.frames()) {
+        const seen = await frame
+          .evaluate(() => {
+            const svg = document.querySelector('svg');
+            if (!svg) return undefined;
+            return {
+              title: svg.querySelector('text')?.textContent ?? '',
+              points: svg.querySelectorAll('circle').length,
+              csp: document.querySelector('meta[http-equiv="Content-Security-Policy"]')?.getAttribute('content') ?? '',
+              scripts: document.querySelectorAll('script').length,
+              note: document.body.innerText.includes('not a process-safety assessment'),
+            };
+          })
+          .catch(() => undefined);
+        if (seen) found = seen;
+      }
+      if (found) break;
+      if (Date.now() > deadline) throw new Error(`no webview frame with an SVG within ${STEP_TIMEOUT} ms (${page.frames().length} frames)`);
+      await new Promise((r) => setTimeout(r, 200));
+    }
+    summary.chart = found;
+    if (!found.title.includes('flow-c')) throw new Error(`the chart's title is "${found.title}", not the batch flow-c`);
+    // 7 temperatures (350 to 500 °C step 25), one point per plotted quantity at each.
+    if (found.points < 7) throw new Error(`the chart has ${found.points} points, fewer than the 7 temperatures of the sweep`);
+    if (!found.csp.includes("default-src 'none'")) throw new Error(`the webview's CSP is "${found.csp}", without default-src 'none'`);
+    if (found.scripts !== 0) throw new Error(`the chart webview has ${found.scripts} script elements`);
+    if (!found.note) throw new Error('the chart webview lacks the "not a process-safety assessment" note');
+    return await screenshot('vscode-7-chart-webview.png');
   });
 } catch (e) {
   summary.errors = [String((e && e.message) || e)];
