@@ -1,6 +1,6 @@
 // The chemical equilibrium solver of the chemistry core: the public API.
 export { activities } from './activity';
-export { CONSERVATION_TOLERANCE, invalidShaped as resultWithoutAnswer, LNQ_TOLERANCE, solveEquilibrium } from './solve';
+export { CONSERVATION_TOLERANCE, invalidShaped as resultWithoutAnswer, LNQ_TOLERANCE, solveEquilibrium, type SolveOptions } from './solve';
 export {
   GAS_CONSTANT,
   STANDARD_CONCENTRATION,

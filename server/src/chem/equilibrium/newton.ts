@@ -142,11 +142,66 @@ class StateArrays {
 
 let pooledState: StateArrays | undefined;
 
+/** A start for the extent iteration other than n0: amounts (compact order) and the basis extents that reach them from n0. */
+export interface WarmStart {
+  readonly n: Float64Array;
+  readonly xi: Float64Array;
+}
+
+/** Largest conservation residual, relative to the total amount, of a start given as warm. */
+const WARM_RESIDUAL = 1e-13;
+
+/**
+ * The warm start for `start` (amounts per species, e.g. the equilibrium at a neighbouring
+ * point of a sweep), or undefined when it cannot serve: it must conserve what n0 conserves
+ * (n0 + ν·ξ for basis extents ξ, to WARM_RESIDUAL of the total), leave every species outside
+ * the active reactions at its n0, and be strictly positive in every species the reactions
+ * touch that can form (the cold start's kicks are what make the start interior otherwise).
+ */
+export function warmStart(c: Compact, p: Prepared, start: readonly number[]): WarmStart | undefined {
+  const S = p.speciesCount;
+  const { m, rho } = c;
+  if (start.length !== S) return undefined;
+  for (let i = 0; i < S; i++) {
+    const x = start[i];
+    if (!(x >= 0) || !Number.isFinite(x)) return undefined;
+    if (!p.touched[i] && x !== p.n0[i]) return undefined;
+  }
+  const n = new Float64Array(m);
+  for (let j = 0; j < m; j++) {
+    const i = c.species[j];
+    n[j] = start[i];
+    if (!(n[j] > 0) && p.formable[i]) return undefined;
+  }
+  // Basis extents by least squares: (ν νᵀ) ξ = ν (start − n0), then the residual.
+  const a = new Float64Array(rho * rho);
+  const xi = new Float64Array(rho);
+  for (let k = 0; k < rho; k++) {
+    for (let l = 0; l < rho; l++) {
+      let sum = 0;
+      for (let j = 0; j < m; j++) sum += c.nu[k * m + j] * c.nu[l * m + j];
+      a[k * rho + l] = sum;
+    }
+    let b = 0;
+    for (let j = 0; j < m; j++) b += c.nu[k * m + j] * (n[j] - c.n0[j]);
+    xi[k] = b;
+  }
+  const perm = new Int32Array(rho);
+  if (!luFactor(a, rho, perm)) return undefined;
+  luSolve(a, rho, perm, xi);
+  for (let j = 0; j < m; j++) {
+    let reached = c.n0[j];
+    for (let k = 0; k < rho; k++) reached += c.nu[k * m + j] * xi[k];
+    if (!(Math.abs(reached - n[j]) <= WARM_RESIDUAL * c.total)) return undefined;
+  }
+  return { n, xi };
+}
+
 /**
  * The starting point: n0, then each reaction that first makes a species formable is run a
  * fraction of the way (closure order). Valid until the next call (its arrays are reused).
  */
-export function initialState(c: Compact, p: Prepared): ExtentState {
+export function initialState(c: Compact, p: Prepared, warm?: WarmStart): ExtentState {
   const S = p.speciesCount;
   if (!pooledState || pooledState.m !== c.m || pooledState.rho !== c.rho || pooledState.speciesCount !== S) pooledState = new StateArrays(c.m, c.rho, S);
   const { n, xi, held, absent, position } = pooledState;
@@ -155,6 +210,12 @@ export function initialState(c: Compact, p: Prepared): ExtentState {
   held.fill(0);
   absent.fill(0);
   position.fill(-1);
+  if (warm) {
+    // A strictly interior, conservation-equivalent start: no kicks needed.
+    n.set(warm.n);
+    xi.set(warm.xi);
+    return { n, xi, held, absent, iterations: 0, iterationBase: 0 };
+  }
   for (let j = 0; j < c.m; j++) position[c.species[j]] = j;
   for (let q = 0; q < p.kicks.length; q += 2) {
     const r = p.kicks[q];

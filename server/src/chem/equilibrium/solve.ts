@@ -12,6 +12,7 @@ import {
   holdAtZero,
   initialState,
   negativeMultiplier,
+  warmStart,
   RANK_TOLERANCE,
   release,
   NUCLEATION_FRACTION,
@@ -70,13 +71,25 @@ const MAX_PHASE_CHANGES = 6;
  * LNQ_TOLERANCE where all species are present, Q on the right side of K where a pure phase
  * is absent) gives 'failed' with a message and n0 copied.
  */
-export function solveEquilibrium(problem: EquilibriumProblem): EquilibriumResult {
+export function solveEquilibrium(problem: EquilibriumProblem, options: SolveOptions = {}): EquilibriumResult {
   try {
-    return solveChecked(problem);
+    return solveChecked(problem, false, options.start);
   } catch (error) {
     // A defect, not bad input: report it rather than throw into the caller.
     return invalidShaped(problem, 'failed', `internal error: ${error instanceof Error ? error.message : String(error)}`);
   }
+}
+
+export interface SolveOptions {
+  /**
+   * A warm start: amounts per species that conserve what the initial amounts conserve (n0 +
+   * ν·ξ), such as the equilibrium at a neighbouring point of a sweep (same charge, another
+   * temperature, pressure or volume). The extent iteration of the general path starts there
+   * instead of at n0. It is only a hint: a start that does not conserve, or that is not
+   * strictly positive in every species that can form, is ignored, and a warm solve that
+   * fails is done again cold. The answer is the same either way (G is convex).
+   */
+  readonly start?: readonly number[];
 }
 
 /**
@@ -111,7 +124,7 @@ function solveArrays(p: Prepared): SolveArrays {
   return pooledSolveArrays;
 }
 
-function solveChecked(problem: EquilibriumProblem, restricted = false): EquilibriumResult {
+function solveChecked(problem: EquilibriumProblem, restricted = false, start?: readonly number[]): EquilibriumResult {
   const prepared = prepare(problem);
   if (!prepared.ok) return invalidShaped(problem, 'invalid', prepared.message);
   const p = prepared.prepared;
@@ -119,7 +132,7 @@ function solveChecked(problem: EquilibriumProblem, restricted = false): Equilibr
   // restriction to their combinations that leave it alone (restriction.ts). Once is enough:
   // the restricted problem's never-formable species touch no reaction.
   const restriction = restricted ? undefined : restrictedProblem(problem, p);
-  if (restriction) return expandedResult(problem, restriction, solveChecked(restriction.problem, true));
+  if (restriction) return expandedResult(problem, restriction, solveChecked(restriction.problem, true, start));
   const { n, logA, extents } = solveArrays(p);
   for (let i = 0; i < p.speciesCount; i++) n[i] = p.n0[i];
   for (let r = 0; r < p.reactionCount; r++) extents[r] = 0;
@@ -143,9 +156,12 @@ function solveChecked(problem: EquilibriumProblem, restricted = false): Equilibr
   }
 
   const c = compact(p);
-  const st = initialState(c, p);
+  const warm = start !== undefined ? warmStart(c, p, start) : undefined;
+  const st = initialState(c, p, warm);
   const general = solveGeneral(c, st, p);
   let message = general.message;
+  // A warm start is only a hint: whatever went wrong from it, solve again from n0.
+  if (warm && message !== undefined) return solveChecked(problem, restricted);
   const iterations = st.iterations + general.iterations;
   for (let j = 0; j < c.m; j++) n[c.species[j]] = st.n[j];
   if (message === undefined) {
@@ -155,6 +171,7 @@ function solveChecked(problem: EquilibriumProblem, restricted = false): Equilibr
       for (let k = 0; k < rho; k++) extents[p.basis[k]] = st.xi[k];
       return build(p, n, logA, extents, 'converged', undefined, iterations, 'newton');
     }
+    if (warm) return solveChecked(problem, restricted);
     message = problemFound;
   }
   if (singleMessage) message = `${message}; the single-reaction path also failed: ${singleMessage}`;

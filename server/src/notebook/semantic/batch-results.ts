@@ -69,7 +69,8 @@ export class SolveCache {
   hits = 0;
   misses = 0;
 
-  solve(problem: EquilibriumProblem): EquilibriumResult {
+  /** `start`: a warm start for a miss (see SolveOptions); the key is the problem alone, since the answer does not depend on it. */
+  solve(problem: EquilibriumProblem, start?: readonly number[]): EquilibriumResult {
     const key = JSON.stringify(problem);
     const hit = this.map.get(key);
     if (hit) {
@@ -79,7 +80,7 @@ export class SolveCache {
       return hit;
     }
     this.misses++;
-    const result = safeSolve(problem);
+    const result = safeSolve(problem, start);
     this.map.set(key, result);
     if (this.map.size > SOLVE_CACHE_LIMIT) this.map.delete(this.map.keys().next().value as string);
     return result;
@@ -90,15 +91,16 @@ export class SolveCache {
  * The solver does not throw on any input; should a defect make it throw anyway, that batch is
  * reported as not solved (with the reason) and the rest of the notebook is still analysed.
  */
-function safeSolve(problem: EquilibriumProblem): EquilibriumResult {
+function safeSolve(problem: EquilibriumProblem, start?: readonly number[]): EquilibriumResult {
   try {
-    return solveEquilibrium(problem);
+    return solveEquilibrium(problem, { start });
   } catch (e) {
     return resultWithoutAnswer(problem, 'failed', `internal solver error (${e instanceof Error ? e.message : String(e)}); please report this notebook`);
   }
 }
 
-export function solveBatch(inputs: BatchInputs, cache: SolveCache): BatchResult {
+/** `start`: the equilibrium of a neighbouring solve of the same species (a sweep's previous point), as a warm start. */
+export function solveBatch(inputs: BatchInputs, cache: SolveCache, start?: readonly number[]): BatchResult {
   const count = inputs.species.length;
   const charged = inputs.species.map((s) => s.charged);
   const n = [...charged];
@@ -129,7 +131,7 @@ export function solveBatch(inputs: BatchInputs, cache: SolveCache): BatchResult 
         : { kind: 'constant-volume', T: inputs.temperature, gasVolume: inputs.conditions.gasVolume },
     liquidVolume: inputs.liquidVolume,
   };
-  const result = cache.solve(problem);
+  const result = cache.solve(problem, start !== undefined && start.length === count ? start : undefined);
   const equilibrium = result.status === 'converged' ? [...result.n] : afterOneWay;
   const reactions: ReactionOutcome[] = inputs.reversible.map((input, j) => ({
     input,

@@ -194,11 +194,18 @@ export function pointInputs(
 /** Solves the batch at every point of each sweep. */
 export function solveSweeps(batch: BatchModel, sweeps: readonly SweepModel[], model: NotebookModel, cache: SolveCache, source?: SourceState): SweepResult[] {
   const base = batchInputs(batch, model, source).inputs;
-  return sweeps.map((sweep) => ({
-    sweep,
-    points: sweep.values.map((value, i) => {
-      const inputs = base ? pointInputs(base, batch, sweep.variable, sweep.dimension, value, model, source) : undefined;
-      return { written: sweep.written[i], result: inputs ? solveBatch(inputs, cache) : undefined };
-    }),
-  }));
+  return sweeps.map((sweep) => {
+    // Each point starts from the previous point's equilibrium (a warm start; the solver uses it
+    // only where it conserves the same amounts, as it does when T, P or the vessel changes).
+    let previous: readonly number[] | undefined;
+    return {
+      sweep,
+      points: sweep.values.map((value, i) => {
+        const inputs = base ? pointInputs(base, batch, sweep.variable, sweep.dimension, value, model, source) : undefined;
+        const result = inputs ? solveBatch(inputs, cache, previous) : undefined;
+        previous = result?.status === 'converged' ? result.equilibrium : undefined;
+        return { written: sweep.written[i], result };
+      }),
+    };
+  });
 }
