@@ -58,6 +58,15 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
   const byName = new Map<string, BatchModel>();
   for (const b of model.batches) if (b.node.name && !byName.has(b.name)) byName.set(b.name, b);
   const done = new Map<BatchModel, SourceState | undefined>();
+  /** Whether following `from` from this batch comes back to a batch already seen. */
+  const loops = (batch: BatchModel): boolean => {
+    const seen = new Set<BatchModel>();
+    for (let at: BatchModel | undefined = batch; at; at = at.source !== undefined ? byName.get(at.source) : undefined) {
+      if (seen.has(at)) return true;
+      seen.add(at);
+    }
+    return false;
+  };
   // Solves a batch once, its source first (chains of any length; a loop is an error from build.ts and is not followed).
   const solve = (batch: BatchModel, chain: readonly BatchModel[]): SourceState | undefined => {
     if (done.has(batch)) return done.get(batch);
@@ -70,6 +79,9 @@ export function analyse(text: string, caches: AnalysisCaches = createCaches()): 
       }
       source = solve(from, [...chain, batch]);
       if (!source) {
+        const at = batch.node.source ?? batch.node.keyword;
+        // A chain that loops has its batch-cycle errors; any other unsolved source gets its reason here.
+        if (!loops(from)) batchDiagnostics.push(diagnostic('missing-data', `\`${from.name}\` cannot be solved (see its errors), so this batch cannot start from it`, at.start, at.end));
         done.set(batch, undefined);
         return undefined;
       }

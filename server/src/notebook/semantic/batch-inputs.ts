@@ -268,7 +268,7 @@ function followOnInputs(batch: BatchModel, model: NotebookModel, source: SourceS
   if (!source || !source.converged) {
     // An unknown source or a loop has its own error on this name; a source with errors of its own says why there.
     if (source && !source.converged) {
-      out.push(diagnostic('missing-data', `\`${batch.source}\` has no equilibrium answer (see its error), so this batch cannot start from it`, where.start, where.end));
+      out.push(diagnostic('missing-data', `\`${batch.source}\` has no equilibrium answer (see its errors), so this batch cannot start from it`, where.start, where.end));
     }
     return { diagnostics: out };
   }
