@@ -28,6 +28,8 @@ import { expandedResult, restrictedProblem } from './restriction';
 import { solveSingleReaction } from './single';
 import { GAS_CONSTANT, type EquilibriumProblem, type EquilibriumResult } from './types';
 
+/** How verification says a reaction can still form an absent mixture phase (see vanishedPhaseDirection). */
+const FORMS_ABSENT_PHASE = 'could still form an absent';
 /** Hard bound on |ln Q − ln K| for an active reaction whose species are all present. */
 export const LNQ_TOLERANCE = 1e-9;
 /** Hard bound on the violation of each conservation law, relative to the total amount. */
@@ -124,7 +126,12 @@ function solveArrays(p: Prepared): SolveArrays {
   return pooledSolveArrays;
 }
 
-function solveChecked(problem: EquilibriumProblem, restricted = false, start?: readonly number[]): EquilibriumResult {
+/**
+ * `keepTrace`: a second attempt after the answer left out a mixture phase that a reaction can
+ * still form: a phase whose real amount ends at trace level (below VANISH_FRACTION, limited by
+ * a co-product that is itself a trace) is then kept, not declared absent.
+ */
+function solveChecked(problem: EquilibriumProblem, restricted = false, start?: readonly number[], keepTrace = false): EquilibriumResult {
   const prepared = prepare(problem);
   if (!prepared.ok) return invalidShaped(problem, 'invalid', prepared.message);
   const p = prepared.prepared;
@@ -132,7 +139,7 @@ function solveChecked(problem: EquilibriumProblem, restricted = false, start?: r
   // restriction to their combinations that leave it alone (restriction.ts). Once is enough:
   // the restricted problem's never-formable species touch no reaction.
   const restriction = restricted ? undefined : restrictedProblem(problem, p);
-  if (restriction) return expandedResult(problem, restriction, solveChecked(restriction.problem, true, start));
+  if (restriction) return expandedResult(problem, restriction, solveChecked(restriction.problem, true, start, keepTrace));
   const { n, logA, extents } = solveArrays(p);
   for (let i = 0; i < p.speciesCount; i++) n[i] = p.n0[i];
   for (let r = 0; r < p.reactionCount; r++) extents[r] = 0;
@@ -158,10 +165,10 @@ function solveChecked(problem: EquilibriumProblem, restricted = false, start?: r
   const c = compact(p);
   const warm = start !== undefined ? warmStart(c, p, start) : undefined;
   const st = initialState(c, p, warm);
-  const general = solveGeneral(c, st, p);
+  const general = solveGeneral(c, st, p, keepTrace);
   let message = general.message;
   // A warm start is only a hint: whatever went wrong from it, solve again from n0.
-  if (warm && message !== undefined) return solveChecked(problem, restricted);
+  if (warm && message !== undefined) return solveChecked(problem, restricted, undefined, keepTrace);
   const iterations = st.iterations + general.iterations;
   for (let j = 0; j < c.m; j++) n[c.species[j]] = st.n[j];
   if (message === undefined) {
@@ -171,7 +178,8 @@ function solveChecked(problem: EquilibriumProblem, restricted = false, start?: r
       for (let k = 0; k < rho; k++) extents[p.basis[k]] = st.xi[k];
       return build(p, n, logA, extents, 'converged', undefined, iterations, 'newton');
     }
-    if (warm) return solveChecked(problem, restricted);
+    if (warm) return solveChecked(problem, restricted, undefined, keepTrace);
+    if (!keepTrace && problemFound.includes(FORMS_ABSENT_PHASE)) return solveChecked(problem, restricted, undefined, true);
     message = problemFound;
   }
   if (singleMessage) message = `${message}; the single-reaction path also failed: ${singleMessage}`;
@@ -187,12 +195,12 @@ function solveChecked(problem: EquilibriumProblem, restricted = false, start?: r
  * The general path: the active-set iteration (settle), then the phantom inerts are resolved
  * and a last polish makes the answer exact.
  */
-function solveGeneral(c: Compact, st: ExtentState, p: Prepared): { message?: string; iterations: number } {
+function solveGeneral(c: Compact, st: ExtentState, p: Prepared, keepTrace: boolean): { message?: string; iterations: number } {
   const settled = settle(c, st, p);
   let iterations = settled.iterations;
   if (settled.message !== undefined) return settled;
   if (c.phantom[0] > 0 || c.phantom[1] > 0) {
-    const directions = removePhantoms(c, st);
+    const directions = removePhantoms(c, st, keepTrace);
     if ('underflow' in directions) return { message: outOfRange(p, c, directions.underflow), iterations };
     const stage3 = polish(c, st, directions);
     iterations += stage3.iterations;
@@ -305,14 +313,14 @@ function outOfRange(p: Prepared, c: Compact, j: number): string {
  * for the phases that remain. A species of a phase that remains whose amount underflowed to
  * zero is reported instead (out of the double range).
  */
-function removePhantoms(c: Compact, st: ExtentState): Directions | { readonly underflow: number } {
+function removePhantoms(c: Compact, st: ExtentState, keepTrace: boolean): Directions | { readonly underflow: number } {
   let vanished = false;
   const gone = [false, false];
   for (let g = 0; g < 2; g++) {
     if (!(c.phantom[g] > 0)) continue;
     let real = 0;
     for (let j = 0; j < c.m; j++) if (c.group[j] === g) real += st.n[j];
-    if (real <= VANISH_FRACTION * c.total) {
+    if (real <= VANISH_FRACTION * c.total && !(keepTrace && real > 0)) {
       vanished = true;
       gone[g] = true;
       for (let j = 0; j < c.m; j++) if (c.group[j] === g) st.n[j] = 0;
@@ -446,7 +454,7 @@ function vanishedPhaseDirection(p: Prepared, n: Float64Array, logA: Float64Array
       else if (p.model[i] === PURE || (p.group[i] >= 0 && groupAmount[p.group[i]] === 0)) lnQ += v * p.offset[i];
       else possible = false;
     }
-    if (possible && lnQ - dir * p.lnK[r] < -LNQ_TOLERANCE) return `could still form an absent ${dir > 0 ? 'product' : 'reactant'} phase (ln Q − ln K = ${dir * lnQ - p.lnK[r]} with it pure)`;
+    if (possible && lnQ - dir * p.lnK[r] < -LNQ_TOLERANCE) return `${FORMS_ABSENT_PHASE} ${dir > 0 ? 'product' : 'reactant'} phase (ln Q − ln K = ${dir * lnQ - p.lnK[r]} with it pure)`;
   }
   return undefined;
 }
