@@ -64,7 +64,9 @@ const MAX_PHASE_CHANGES = 6;
  *   is absent; unstable, it must be present, and is formed along its incipient composition
  *   and solved with. A present phase whose real amount ends below VANISH_FRACTION (where the
  *   test agrees within its tolerance) is declared absent too, and a final polish without
- *   the phantoms makes the answer exact.
+ *   the phantoms makes the answer exact. Should verification then find a reaction that could
+ *   still form that phase (a real trace phase, limited by a co-product that is a trace too),
+ *   the solve is repeated with such trace phases kept.
  * Reactions that can run in neither direction from what is present are inactive, species
  * that can never form stay exactly 0, and of linearly dependent (consistent) reactions only
  * the first independent ones in input order carry extents. Never throws: invalid input gives
