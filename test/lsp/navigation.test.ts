@@ -109,6 +109,28 @@ describe('navigation', () => {
 });
 
 describe('completion over the protocol', () => {
+  it('a follow-on batch: definition from `from`, references, and rename of the source batch', async () => {
+    const text = [...TEXT.split('\n').slice(0, 10), 'batch dried from trial-1', '  remove H2O 90 %', ''].join('\n');
+    const uri = 'file:///tmp/stillpoint-nav/follow-on.eqnb';
+    client = new LspTestClient();
+    await client.initialize();
+    client.notify('textDocument/didOpen', { textDocument: { uri, languageId: 'eqnb', version: 1, text } });
+    await client.waitFor('textDocument/publishDiagnostics', (p: { uri: string }) => p.uri === uri);
+    const def = await client.request<Loc[] | Loc>('textDocument/definition', { textDocument: { uri }, position: { line: 10, character: 19 } });
+    const target = Array.isArray(def) ? def[0] : def;
+    expect(target.range.start).toEqual({ line: 5, character: 6 });
+    const refs = await client.request<Loc[]>('textDocument/references', { textDocument: { uri }, position: { line: 5, character: 7 }, context: { includeDeclaration: true } });
+    expect(refs.map((r) => r.range.start.line).sort((a, b) => a - b)).toEqual([5, 10]);
+    const edit = await client.request<{ changes: Record<string, LspTextEdit[]> }>('textDocument/rename', {
+      textDocument: { uri },
+      position: { line: 5, character: 7 },
+      newName: 'pass-1',
+    });
+    const renamed = applyEdits(text, edit.changes[uri]).split('\n');
+    expect(renamed[5]).toBe('batch pass-1 at 60 °C');
+    expect(renamed[10]).toBe('batch dried from pass-1');
+  });
+
   it('offers reaction labels after `uses`, each with a detail and a text edit over the partial word', async () => {
     client = await open();
     const list = await client.request<{ items: { label: string; detail: string; kind: number; textEdit: LspTextEdit }[] }>('textDocument/completion', {

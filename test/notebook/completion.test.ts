@@ -34,6 +34,12 @@ const CASES: { name: string; text: string; has: string[]; lacks?: string[] }[] =
   { name: 'species after `basis`', text: `${HEAD}\nbatch b at 60 °C\n  basis $0`, has: ['acid', 'EtOH'] },
   { name: 'volume units after `vessel` and a number', text: `${HEAD}\nbatch b at 60 °C\n  vessel 2 $0`, has: ['mL', 'L'], lacks: ['mol'] },
   { name: 'units for a property value', text: `species acid = C6H12O2 (l)\n  density 0.93 $0`, has: ['g/mL'] },
+  { name: '`at` and `from` after a batch name', text: `${HEAD}\nbatch b $0`, has: ['at', 'from'] },
+  { name: 'other batches after `from`', text: `${HEAD}\nbatch first at 60 °C\n  acid 1 mol\nbatch again from $0`, has: ['first'], lacks: ['again', 'acid'] },
+  { name: 'operation lines under a follow-on batch', text: `${HEAD}\nbatch first at 60 °C\n  acid 1 mol\nbatch again from first\n  $0`, has: ['add', 'remove', 'vent', 'uses'], lacks: ['acid'] },
+  { name: 'species after `remove`', text: `${HEAD}\nbatch first at 60 °C\n  acid 1 mol\nbatch again from first\n  remove $0`, has: ['acid', 'EtOH'] },
+  { name: '`%` and amount units after a removed amount', text: `${HEAD}\nbatch first at 60 °C\n  acid 1 mol\nbatch again from first\n  remove acid 50 $0`, has: ['%', 'mol', 'g'] },
+  { name: '`to` after `vent`', text: `${HEAD}\nbatch first at 60 °C\n  acid 1 mol\nbatch again from first\n  vent $0`, has: ['to'] },
   { name: 'nothing inside a note', text: `${HEAD}\n# a note $0`, has: [] },
 ];
 

@@ -133,9 +133,11 @@ export function completions(analysis: Analysis, offset: number): CompletionResul
       return result(analysis.model.reactions.map((r) => ({ label: r.label, kind: 'label' as const, detail: `${r.reversible ? 'reversible' : 'one-way'}: ${text.slice(r.equationStart, r.equationEnd)}` })));
     }
     if (words[0] === 'basis') return result(speciesItems());
-    if ((words[0] === 'add' || words[0] === 'remove') && words.length === 2 && !/\s$/.test(before)) return result(speciesItems());
+    // The word being typed after an operation keyword: `remove |` or `remove wa|`.
+    const second = (words.length === 1 && /\s$/.test(before)) || (words.length === 2 && !/\s$/.test(before));
+    if ((words[0] === 'add' || words[0] === 'remove') && second) return result(speciesItems());
     if (words[0] === 'remove' && NUMBER_THEN_PARTIAL.test(before)) return result([{ label: '%', kind: 'unit', detail: 'percentage of what is there' }, ...AMOUNT_UNITS]);
-    if (words[0] === 'vent') return words.length === 1 || (words.length === 2 && !/\s$/.test(before)) ? result([{ label: 'to', kind: 'keyword', detail: 'vent down to a stated pressure (default 1 atm)' }]) : NUMBER_THEN_PARTIAL.test(before) ? result([...PRESSURE_UNITS]) : result([]);
+    if (words[0] === 'vent') return second ? result([{ label: 'to', kind: 'keyword', detail: 'vent down to a stated pressure (default 1 atm)' }]) : NUMBER_THEN_PARTIAL.test(before) ? result([...PRESSURE_UNITS]) : result([]);
     if (words[0] === 'vessel' || words[0] === 'volume') return NUMBER_THEN_PARTIAL.test(before) ? result([...VOLUME_UNITS]) : result([]);
     if (words[0] === 'heat') return NUMBER_THEN_PARTIAL.test(before) ? result([{ label: 'kJ/K', kind: 'unit', detail: 'heat capacity' }]) : result([]);
     if (NUMBER_THEN_PARTIAL.test(before)) return result([...AMOUNT_UNITS]);
