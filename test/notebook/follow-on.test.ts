@@ -205,6 +205,11 @@ batch dried from first
     expect(md).toContain('Q after change');
     expect(md).toMatch(/Right after the change, `esterify` has Q = 0\.4 against K = 4: it shifts forward/);
     expect(md).toContain('Starts from: the equilibrium contents of `first`');
+    // The source's name shows the source batch; the keywords and the removed species explain themselves.
+    expect(hover(a, text.indexOf('from first') + 6)?.markdown).toContain('**batch first**');
+    expect(hover(a, text.indexOf('from first') + 1)?.markdown).toMatch(/^\*\*from\*\*: a follow-on batch starts from/);
+    expect(hover(a, text.indexOf('remove water') + 1)?.markdown).toMatch(/^\*\*remove\*\*/);
+    expect(hover(a, text.indexOf('remove water') + 8)?.markdown).toContain('H2O');
   });
 });
 

@@ -57,9 +57,15 @@ export function hover(analysis: Analysis, offset: number): Hover | undefined {
   if (at.kind === 'batch') {
     const b = at.item;
     if (tok.kind === 'species-ref') {
-      const a = b.amounts.find((x) => x.node.species === tok);
+      const a = b.amounts.find((x) => x.node.species === tok) ?? b.operations.find((x) => x.node.species === tok);
       return a?.species ? span(resolvedMarkdown(a.species)) : undefined;
     }
+    if (tok.kind === 'name' && b.node.source === tok) {
+      // The source of a follow-on batch: its own report (what this batch starts from).
+      const source = analysis.model.batches.find((x) => x.name === tok.text && x.node.name);
+      return source ? span(batchMarkdown(source, analysis)) : undefined;
+    }
+    if (tok.kind === 'keyword' && FOLLOW_ON_KEYWORDS[tok.text]) return span(`**${tok.text}**: ${FOLLOW_ON_KEYWORDS[tok.text]}`);
     if (tok.kind === 'name' && b.node.name !== tok) {
       const reaction = analysis.model.reactions.find((r) => r.label === tok.text);
       if (reaction) return span(reactionMarkdown(reaction, analysis.model));
@@ -72,6 +78,15 @@ export function hover(analysis: Analysis, offset: number): Hover | undefined {
   }
   return undefined;
 }
+
+/** The keywords of follow-on batches, for their hover. */
+const FOLLOW_ON_KEYWORDS: Readonly<Record<string, string>> = {
+  from: 'a follow-on batch starts from the equilibrium contents of the batch named after `from` (and its vessel, volume, temperature and pressure unless given here), applies its `add`, `remove` and `vent` lines, and re-equilibrates',
+  add: '`add SPECIES AMOUNT` charges more, in any amount form a batch accepts (`equiv` is relative to the first batch\'s basis)',
+  remove: '`remove SPECIES AMOUNT` or `remove SPECIES P %` takes some out (water distilled off, a solid filtered off)',
+  vent: '`vent` lets the gas of a closed vessel down to 1 atm, every gas in proportion; `vent to PRESSURE` to that pressure. Send vented gas to a safe place and follow your site\'s process-safety review.',
+  to: 'the pressure the vessel is vented down to',
+};
 
 function propertyHover(tok: Token, owner: 'species' | 'reaction' | 'batch'): Hover | undefined {
   const spec = KNOWN_PROPERTIES[owner][tok.text];
