@@ -5,7 +5,7 @@
 // Markdown and the CLI as text, so both show the same numbers.
 import { formatQuantity, trim } from '../../chem/units';
 import type { KSource } from '../../chem/thermo';
-import { PHASE_NAMES, type BatchModel } from '../semantic/model';
+import { PHASE_NAMES, STANDARD_ATMOSPHERE, type BatchModel } from '../semantic/model';
 import type { BatchResult } from '../semantic/batch-results';
 import type { FollowOn, ReversibleInput } from '../semantic/batch-inputs';
 import type { SweepResult } from '../semantic/sweeps';
@@ -109,7 +109,7 @@ export function batchReport(analysis: Analysis, batch: BatchModel): BatchReport 
     const shown = !batch.pressureIsDefault
       ? `${written}${written.endsWith(' bar') ? '' : ` (${formatQuantity(batch.pressure, 'pressure')})`}`
       : batch.source !== undefined
-        ? `${formatQuantity(P, 'pressure')}${source}`
+        ? `${P === STANDARD_ATMOSPHERE ? '1 atm' : formatQuantity(P, 'pressure')}${source}`
         : '1 atm (default: none written)';
     conditions.push(`Pressure: ${shown}, constant`);
     if (volume !== undefined) conditions.push(`Liquid volume: ${formatQuantity(volume, 'volume')}${batch.volume === undefined ? source : ''}`);
