@@ -4,28 +4,18 @@
 // convex for ideal phases, common practice) is what makes the start a mere hint.
 import { describe, expect, it } from 'vitest';
 import { solveEquilibrium, type EquilibriumProblem } from '../../../server/src/chem/equilibrium';
+import { steamReformingProblem } from '../../../server/src/bench/solver';
 import { elementViolation, Random, randomNetwork } from './helpers';
 
 /** Same answer to the solver's own precision: 1e-9 relative plus 1e-13 of the total (as in properties.test.ts). */
 const SAME_RELATIVE = 1e-9;
 const SAME_ABSOLUTE = 1e-13;
 
-/** Steam reforming with the water-gas shift at constant pressure, ln K of each at T from an invented linear fit. */
+/** The benchmark's steam reforming with the water-gas shift, at T, with ln K of each from an invented linear fit in 1/T. */
 function steam(T: number): EquilibriumProblem {
-  return {
-    species: [
-      { id: 'CH4', phase: 'g', n0: 1 },
-      { id: 'H2O', phase: 'g', n0: 3 },
-      { id: 'CO', phase: 'g', n0: 0 },
-      { id: 'H2', phase: 'g', n0: 0 },
-      { id: 'CO2', phase: 'g', n0: 0 },
-    ],
-    reactions: [
-      { label: 'reform', nu: [-1, -1, 1, 3, 0], lnK: 27 - 25000 / T },
-      { label: 'shift', nu: [0, -1, -1, 1, 1], lnK: -4 + 4900 / T },
-    ],
-    conditions: { kind: 'constant-pressure', T, P: 1e6 },
-  };
+  const base = steamReformingProblem();
+  const lnK = [27 - 25000 / T, -4 + 4900 / T];
+  return { ...base, reactions: base.reactions.map((r, k) => ({ ...r, lnK: lnK[k] })), conditions: { kind: 'constant-pressure', T, P: 1e6 } };
 }
 
 describe('warm starts', () => {
