@@ -37,6 +37,7 @@ export interface Restriction {
 export function restrictedProblem(problem: EquilibriumProblem, p: Prepared): Restriction | undefined {
   const S = p.speciesCount;
   const R = p.reactionCount;
+  if (R < 2 || p.formable.every((f) => f === 1)) return undefined; // the common case: nothing to restrict
   const stuck: number[] = [];
   const entangled: number[] = [];
   for (let r = 0; r < R; r++) {
