@@ -47,6 +47,10 @@ const SWEEP_NOTEBOOK = [
 ].join('\n');
 const sweepTimes: number[] = [];
 let sweepPoints = 0;
+// Untimed runs first, so the timed ones measure the analysis rather than the JIT compiling it
+// (an editor session analyses many times); each timed run still starts with empty caches.
+const SWEEP_WARMUP_RUNS = 5;
+for (let i = 0; i < SWEEP_WARMUP_RUNS; i++) createNotebookService().analyse(SWEEP_NOTEBOOK);
 for (let i = 0; i < 7; i++) {
   const fresh = createNotebookService();
   const t0 = performance.now();
@@ -55,7 +59,9 @@ for (let i = 0; i < 7; i++) {
   sweepPoints = a.sweeps.get(a.model.batches[0])?.[0]?.points.length ?? 0;
 }
 const sweepMedian = median(sweepTimes);
-report.push(`sweep: ${sweepPoints}-point temperature sweep of steam reforming + shift, analysed cold: median ${sweepMedian.toFixed(1)} ms over 7 runs (target < ${SWEEP_TARGET_MS} ms: ${(sweepMedian / SWEEP_TARGET_MS).toFixed(2)} of budget)`);
+report.push(
+  `sweep: ${sweepPoints}-point temperature sweep of steam reforming + shift, analysed with empty caches: median ${sweepMedian.toFixed(1)} ms over 7 runs after ${SWEEP_WARMUP_RUNS} untimed ones (target < ${SWEEP_TARGET_MS} ms: ${(sweepMedian / SWEEP_TARGET_MS).toFixed(2)} of budget)`,
+);
 
 const text = generateNotebook(LINES);
 const lineCount = text.split('\n').length - 1;
