@@ -1,18 +1,13 @@
 // `stillpoint chart FILE --batch NAME [--out FILE.svg]`: the SVG chart of the
 // batch's first sweep (`vary` line), to standard output or a file.
-import { readFileSync, writeFileSync } from 'node:fs';
 import { createNotebookService } from '../notebook/ide/service';
 import { batchChartSvg } from '../notebook/ide/chart';
 import type { CliIo } from './commands';
+import { readNotebook, writeOrPrint } from './files';
 
 export function chart(file: string, batchName: string, out: string | undefined, io: CliIo): number {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    io.err(`stillpoint: ${file}: cannot read (${e instanceof Error ? e.message : String(e)})`);
-    return 1;
-  }
+  const text = readNotebook(file, io);
+  if (text === undefined) return 1;
   const analysis = createNotebookService().analyse(text);
   const batch = analysis.model.batches.find((b) => b.name === batchName);
   if (!batch) {
@@ -24,16 +19,5 @@ export function chart(file: string, batchName: string, out: string | undefined, 
     io.err(`stillpoint: batch \`${batchName}\` has no solved sweep to chart; add a line such as \`vary T from 40 to 120 °C step 10\``);
     return 1;
   }
-  if (out) {
-    try {
-      writeFileSync(out, svg);
-    } catch (e) {
-      io.err(`stillpoint: ${out}: cannot write (${e instanceof Error ? e.message : String(e)})`);
-      return 1;
-    }
-    io.out(`wrote ${out}`);
-  } else {
-    io.out(svg.trimEnd());
-  }
-  return 0;
+  return writeOrPrint(out, svg, io) ? 0 : 1;
 }

@@ -1,7 +1,7 @@
 // The `stillpoint` commands (check, balance, formula): the same analysis API as the language server,
 // printed as text or JSON for CI. Exit status: 0 success, 1 any error
 // diagnostic or failure, 2 bad usage. Never prints a stack trace.
-import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { readdirSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { parseFormula } from '../chem/formula';
 import { trim } from '../chem/units';
@@ -10,6 +10,7 @@ import { createNotebookService, type Analysis, type Diagnostic } from '../notebo
 import { solve } from './solve';
 import { report } from './report';
 import { chart } from './chart';
+import { readNotebook } from './files';
 
 const USAGE = `usage: stillpoint COMMAND [ARGS] [--json]
 
@@ -138,11 +139,8 @@ function check(paths: readonly string[], json: boolean, io: CliIo): number {
   let errors = 0;
   let warnings = 0;
   for (const file of files) {
-    let text: string;
-    try {
-      text = readFileSync(file, 'utf8');
-    } catch (e) {
-      io.err(`stillpoint: ${file}: cannot read (${e instanceof Error ? e.message : String(e)})`);
+    const text = readNotebook(file, io);
+    if (text === undefined) {
       failed = true;
       continue;
     }

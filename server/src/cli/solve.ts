@@ -1,11 +1,11 @@
 // `stillpoint solve FILE [--batch NAME] [--json]`: each batch's equilibrium
 // composition from the same analysis the editor shows, as aligned text tables
 // or as JSON for scripts.
-import { readFileSync } from 'node:fs';
 import { createNotebookService } from '../notebook/ide/service';
 import { textTable } from '../notebook/ide/tables';
 import { ESTIMATE_NOTE } from '../notebook/ide/batch-report';
 import type { CliIo } from './commands';
+import { readNotebook } from './files';
 
 interface JsonBatch {
   name: string;
@@ -24,13 +24,8 @@ interface JsonBatch {
 }
 
 export function solve(file: string, only: string | undefined, json: boolean, io: CliIo): number {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    io.err(`stillpoint: ${file}: cannot read (${e instanceof Error ? e.message : String(e)})`);
-    return 1;
-  }
+  const text = readNotebook(file, io);
+  if (text === undefined) return 1;
   const service = createNotebookService();
   const analysis = service.analyse(text);
   const batches = analysis.model.batches.filter((b) => only === undefined || b.name === only);
