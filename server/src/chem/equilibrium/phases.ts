@@ -4,7 +4,10 @@
 // unstable one with its incipient composition.
 import { groupTotals, logActivities, PHANTOM_FRACTION, type Compact } from './compact';
 import { luFactor, luSolve, nullSpaceBasis, reducedRowEchelon } from './linalg';
-import { AMOUNT_FLOOR, buildDirections, FREE, HELD, holdAtZero, NUCLEATION_FRACTION, RANK_TOLERANCE, release, VANISH_FRACTION, type Directions, type ExtentState } from './newton';
+import { VANISH_FRACTION } from './newton';
+import { buildDirections, FREE, HELD, holdAtZero, RANK_TOLERANCE, release, type Directions } from './newton-active-set';
+import { AMOUNT_FLOOR } from './newton-kernels';
+import { NUCLEATION_FRACTION, type ExtentState } from './newton-state';
 
 /** An absent mixture phase is stable if ln Σ (implied mole fractions) is at most this. */
 const STABILITY_TOLERANCE = 1e-9;

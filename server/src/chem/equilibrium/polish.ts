@@ -3,7 +3,8 @@
 // precision and conservation holds to rounding.
 import { groupTotals, type Compact } from './compact';
 import { dot2Difference, luFactor, luSolve, nullSpaceBasis, reducedRowEchelon, swapRows, type RowEchelon } from './linalg';
-import { buildDirections, FREE, HELD, RANK_TOLERANCE, type Directions, type ExtentState, type StageOutcome } from './newton';
+import { buildDirections, FREE, HELD, RANK_TOLERANCE, type Directions } from './newton-active-set';
+import type { ExtentState, StageOutcome } from './newton-state';
 
 /** Iteration cap of the polish. */
 export const POLISH_MAX_ITERATIONS = 40;

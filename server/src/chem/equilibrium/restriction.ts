@@ -9,7 +9,7 @@
 // mapped back to the reactions as given.
 import { lnQuotientRow, quotientLogActivities } from './activity';
 import { nullSpaceBasis, reducedRowEchelon } from './linalg';
-import { RANK_TOLERANCE } from './newton';
+import { RANK_TOLERANCE } from './newton-active-set';
 import { prepare, type Prepared } from './problem';
 import type { EquilibriumProblem, EquilibriumResult, SolverReaction } from './types';
 

@@ -5,22 +5,9 @@
 import { activities, lnQuotient, quotientLogActivities } from './activity';
 import { compact, groupTotals, logActivities, type Compact } from './compact';
 import { dot2Difference, nullSpaceBasis, reducedRowEchelon } from './linalg';
-import {
-  buildDirections,
-  extentNewton,
-  FREE,
-  holdAtZero,
-  initialState,
-  negativeMultiplier,
-  warmStart,
-  RANK_TOLERANCE,
-  release,
-  NUCLEATION_FRACTION,
-  renucleate,
-  VANISH_FRACTION,
-  type Directions,
-  type ExtentState,
-} from './newton';
+import { extentNewton, VANISH_FRACTION } from './newton';
+import { buildDirections, FREE, holdAtZero, negativeMultiplier, RANK_TOLERANCE, release, type Directions } from './newton-active-set';
+import { initialState, NUCLEATION_FRACTION, renucleate, warmStart, type ExtentState } from './newton-state';
 import { absentPhaseTest, formAbsentPhase, holdDwindledPhasesAbsent } from './phases';
 import { conservationLaws, polish } from './polish';
 import { GAS_GROUP, prepare, PURE, type Prepared } from './problem';
