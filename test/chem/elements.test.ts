@@ -1,6 +1,7 @@
 // Tests for the element table (server/src/chem/elements-data.ts via elements.ts): spot checks
-// against the IUPAC 2021 table, structure checks, symbol suggestions, and a cross-check of
-// every row against Debian's python3-periodictable, an independent data library.
+// against the IUPAC 2021 table, structure checks, symbol suggestions, and an optional
+// cross-check of every row against Debian's python3-periodictable, an independent data
+// library. The always-run cross-checks of every row are in elements-reference.test.ts.
 import { execFileSync } from 'node:child_process';
 import { describe, it, expect } from 'vitest';
 import {
@@ -150,10 +151,17 @@ describe('element lookup and suggestions', () => {
 });
 
 // ---------------------------------------------------------------------------------------
-// Cross-check against python3-periodictable (Debian package; the Python module
+// Optional cross-check against python3-periodictable (Debian package; the Python module
 // `periodictable`). Its element masses come from an older IUPAC edition (NIST compilation of
 // the 1999/2001 tables, module version 1.6.0 in Debian 12), so the differences from IUPAC
 // 2021 are listed below, each with the exact expected difference and the reason.
+//
+// It is an extra: `npm test` needs only npm install, and the always-run cross-checks are in
+// elements-reference.test.ts. Where the module cannot be imported, these tests are skipped
+// and a warning names the missing reference and how to install it; with
+// STILLPOINT_REQUIRE_PERIODICTABLE=1 (as .ci/run sets) they run and fail instead.
+// STILLPOINT_PERIODICTABLE_PYTHON names the interpreter to use (default: the Debian
+// /usr/bin/python3, then python3 on PATH).
 // ---------------------------------------------------------------------------------------
 
 interface PtRow {
@@ -169,8 +177,8 @@ interface PtDump {
 }
 
 const INSTALL_HINT =
-  'python3-periodictable is required for this test: run `apt-get install -y python3-periodictable` ' +
-  '(it installs into the Debian interpreter /usr/bin/python3).';
+  'Install it with `sudo apt-get install python3-periodictable` (into the Debian /usr/bin/python3), ' +
+  'or `pip install periodictable` and set STILLPOINT_PERIODICTABLE_PYTHON to that interpreter.';
 
 const DUMP_SCRIPT = `
 import json, sys
@@ -184,28 +192,51 @@ for iso in (p.D, p.T):
 print(json.dumps({"version": p.__version__, "python": sys.executable, "rows": rows}))
 `;
 
-let cachedDump: PtDump | undefined;
+/** Whether a missing periodictable fails the run (1) or skips these tests with a warning (unset, empty or 0). */
+function periodictableRequired(): boolean {
+  const value = process.env.STILLPOINT_REQUIRE_PERIODICTABLE ?? '';
+  if (value === '1') return true;
+  if (value === '' || value === '0') return false;
+  throw new Error(`STILLPOINT_REQUIRE_PERIODICTABLE must be 1, 0 or unset, not '${value}'`);
+}
 
-/** Runs the Debian interpreter first (a PATH python3 may be another install without the package). */
-function periodictableDump(): PtDump {
-  if (cachedDump) return cachedDump;
+type PtProbe = { ok: true; dump: PtDump } | { ok: false; reason: string };
+
+/** Runs the dump script; the Debian interpreter first (a PATH python3 may be another install without the package). */
+function probePeriodictable(): PtProbe {
+  const chosen = process.env.STILLPOINT_PERIODICTABLE_PYTHON;
+  const pythons = chosen ? [chosen] : ['/usr/bin/python3', 'python3'];
   const failures: string[] = [];
-  for (const python of ['/usr/bin/python3', 'python3']) {
+  for (const python of pythons) {
     try {
       const out = execFileSync(python, ['-c', DUMP_SCRIPT], {
         encoding: 'utf8',
         timeout: 60_000,
         stdio: ['ignore', 'pipe', 'pipe'],
       });
-      cachedDump = JSON.parse(out) as PtDump;
-      return cachedDump;
+      return { ok: true, dump: JSON.parse(out) as PtDump };
     } catch (err) {
       const e = err as { message?: string; stderr?: string };
       const detail = (e.stderr ?? '').trim().split('\n').pop() ?? '';
       failures.push(`${python}: ${detail || e.message || String(err)}`);
     }
   }
-  throw new Error(`${INSTALL_HINT}\nTried:\n  ${failures.join('\n  ')}`);
+  return { ok: false, reason: `tried ${failures.join('; ')}` };
+}
+
+const PT_REQUIRED = periodictableRequired();
+const PT_PROBE = probePeriodictable();
+const PT_SKIPPED = !PT_PROBE.ok && !PT_REQUIRED;
+if (!PT_PROBE.ok) {
+  const what = PT_REQUIRED
+    ? 'is required (STILLPOINT_REQUIRE_PERIODICTABLE=1) but absent, so its cross-check tests fail'
+    : 'is absent, so its cross-check tests are SKIPPED (set STILLPOINT_REQUIRE_PERIODICTABLE=1 to fail instead)';
+  console.warn(`[elements.test] optional reference python3-periodictable ${what}. ${INSTALL_HINT} (${PT_PROBE.reason})`);
+}
+
+function periodictableDump(): PtDump {
+  if (PT_PROBE.ok) return PT_PROBE.dump;
+  throw new Error(`python3-periodictable is absent. ${INSTALL_HINT}\n${PT_PROBE.reason}`);
 }
 
 function ptRow(symbol: string): PtRow {
@@ -269,8 +300,12 @@ const ALLOWED_WEIGHT_DIFFERENCES: Record<string, { diff: number; reason: string 
   Mc: { diff: 290 - 289, reason: 'Mc-290 is reported longer-lived than Mc-289; tables differ (from memory)' },
 };
 
-describe('element table: cross-check against python3-periodictable', () => {
-  it('periodictable is installed and gives all 118 elements plus D and T', () => {
+const PT_TITLE = PT_SKIPPED
+  ? 'element table: cross-check against python3-periodictable (optional; SKIPPED: not installed, see the warning)'
+  : 'element table: cross-check against python3-periodictable (optional)';
+
+describe.skipIf(PT_SKIPPED)(PT_TITLE, () => {
+  it('periodictable gives all 118 elements plus D and T', () => {
     const dump = periodictableDump();
     expect(dump.rows.length).toBe(120); // 118 elements + D + T
     expect(dump.rows.slice(0, 118).map((r) => r.z)).toEqual(Array.from({ length: 118 }, (_, i) => i + 1));
@@ -330,7 +365,9 @@ describe('element table: cross-check against python3-periodictable', () => {
       expect(Number.isInteger(ptRow(e.symbol).mass), e.symbol).toBe(true);
     }
   });
+});
 
+describe('element table: the python3-periodictable difference list (always run)', () => {
   it('every listed difference names a known symbol and a reason', () => {
     for (const [symbol, { reason }] of Object.entries(ALLOWED_WEIGHT_DIFFERENCES)) {
       expect(isElementSymbol(symbol), symbol).toBe(true);
